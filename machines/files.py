@@ -1,0 +1,326 @@
+"""Machine files, format ``relaywright.machine/1`` (TOML): read, validate, write atomically.
+
+Reading goes text → ``tomllib`` → plain dict → :func:`case_from_dict` → :class:`~machines.model.MachineCase`.
+Every problem raises :class:`~machines.errors.InputError` whose message starts with the key path
+(``machine.rated_current: ...``). Unknown keys are errors with a "did you mean" suggestion.
+
+Writing takes the plain dict (values as a person writes them, e.g. ``"6.6 kV"``), serialises it with ``tomli_w``
+to a temporary file in the same folder and renames it over the target, so a crash never leaves half a file. A file
+whose ``sheet.revision`` is higher than the one being written is never overwritten.
+"""
+
+from __future__ import annotations
+
+import difflib
+import os
+import re
+import tempfile
+import tomllib
+from dataclasses import fields
+from pathlib import Path
+from typing import Any
+
+from machines.errors import InputError, one_line
+from machines.model import (
+    FieldSpec, Grounding, InductionMotor, Instruments, MachineCase, MotorLoad, Ratio, SheetInfo, StudyOptions,
+    Supply, SynchronousGenerator, field_specs, motor_rated_current, validate_case,
+)
+from machines.units import KINDS, convert, parse_quantity
+
+FORMAT = "relaywright.machine/1"
+MAX_FILE_BYTES = 1_000_000
+MACHINE_KINDS = {"induction-motor": InductionMotor, "synchronous-generator": SynchronousGenerator}
+SECTIONS = {"sheet": SheetInfo, "study": StudyOptions, "machine": None, "load": MotorLoad, "supply": Supply,
+            "grounding": Grounding, "instruments": Instruments}
+TOP_KEYS = ("format", *SECTIONS, "overrides")
+NEMA_LETTERS = tuple("ABCDEFGHJKLMNPRSTUV")
+
+
+def _suggest(name: str, known) -> str:
+    close = difflib.get_close_matches(name, list(known), n=1, cutoff=0.6)
+    return f" (did you mean '{close[0]}'?)" if close else ""
+
+
+def unknown_key(path: str, name: str, known) -> InputError:
+    return InputError(path, f"unknown key{_suggest(name, known)}; expected one of: {', '.join(sorted(known))}")
+
+
+def _show(value: float, si_unit: str, unit: str) -> str:
+    """A range limit in the unit the field is written in."""
+    if unit and unit not in ("pu", si_unit):
+        value = convert(value, si_unit, unit)
+    return f"{value:.4g} {unit or si_unit}".strip()
+
+
+def parse_ratio(raw: Any, key: str, unit: str) -> Ratio:
+    """Read an instrument-transformer ratio such as ``"200/1 A"`` or ``"6600/110 V"``."""
+    example = "'200/1 A'" if unit == "A" else "'6600/110 V'"
+    if not isinstance(raw, str):
+        raise InputError(key, f"expected a ratio such as {example}, got {one_line(raw)}")
+    m = re.fullmatch(r"\s*(\d{1,7}(?:\.\d{1,6})?)\s*/\s*(\d{1,7}(?:\.\d{1,6})?)\s*([A-Za-z]{1,3})?\s*", raw)
+    if not m:
+        raise InputError(key, f"expected a ratio such as {example}, got {one_line(raw)}")
+    primary, secondary = float(m.group(1)), float(m.group(2))
+    if m.group(3):
+        scale = {"A": 1.0, "kA": 1e3, "V": 1.0, "kV": 1e3}.get(m.group(3))
+        if scale is None or m.group(3)[-1] != unit:
+            raise InputError(key, f"expected a ratio in {unit} such as {example}, got {one_line(raw)}")
+    if primary <= 0 or secondary <= 0:
+        raise InputError(key, f"expected a ratio with a positive primary and secondary such as {example}, "
+                              f"got {one_line(raw)}")
+    if primary < secondary:
+        raise InputError(key, f"expected primary/secondary with the primary first such as {example}, "
+                              f"got {one_line(raw)}")
+    return Ratio(primary, secondary)
+
+
+def parse_value(spec: FieldSpec, raw: Any, key: str, *, rated_current: float | None = None,
+                default_unit: str | None = None) -> Any:
+    """Turn one raw value into the model's value (SI float, int, str, Ratio), or raise InputError naming ``key``.
+
+    The wizard calls this too, so a refused answer gets the same message as a refused file value.
+    """
+    kind = spec.kind
+    if kind == "text":
+        if not isinstance(raw, str):
+            raise InputError(key, f"expected text in quotes, got {one_line(raw)}")
+        if len(raw) > 500 or "\x00" in raw:
+            raise InputError(key, f"expected at most 500 characters of text, got {len(raw)}")
+        return raw.strip()
+    if kind == "choice":
+        if not isinstance(raw, str) or raw not in spec.choices:
+            hint = _suggest(str(raw), spec.choices) if isinstance(raw, str) else ""
+            raise InputError(key, f"expected one of {', '.join(spec.choices)}, got {one_line(raw)}{hint}")
+        return raw
+    if kind == "integer":
+        if isinstance(raw, str) and re.fullmatch(r"\s*\d{1,6}\s*", raw):
+            raw = int(raw)
+        if isinstance(raw, bool) or not isinstance(raw, int):
+            raise InputError(key, f"expected a whole number, got {one_line(raw)}")
+        if (spec.lo is not None and raw < spec.lo) or (spec.hi is not None and raw > spec.hi):
+            raise InputError(key, f"expected a whole number from {spec.lo:g} to {spec.hi:g}, got {raw}")
+        return raw
+    if kind == "boolean":
+        if not isinstance(raw, bool):
+            raise InputError(key, f"expected true or false, got {one_line(raw)}")
+        return raw
+    if kind == "letter":
+        if not isinstance(raw, str) or raw.strip().upper() not in NEMA_LETTERS:
+            raise InputError(key, f"expected a NEMA MG 1 code letter A–V (not I, O, Q), got {one_line(raw)}")
+        return raw.strip().upper()
+    if kind == "ratio":
+        return parse_ratio(raw, key, spec.unit)
+    if kind == "current_or_pu":
+        text = raw
+        if isinstance(raw, (int, float)) and not isinstance(raw, bool):
+            text = f"{raw} {default_unit or 'pu'}"
+        if isinstance(text, str) and re.search(r"(pu|p\.u\.|%)\s*$", text.strip()) or (
+                isinstance(text, str) and default_unit in ("pu", "%") and re.fullmatch(r"\s*[\d.eE+-]+\s*", text)):
+            pu = parse_quantity(text, "per_unit", key=key, default_unit=default_unit)
+            if rated_current is None:
+                raise InputError(key, "a per-unit value needs the rated current")
+            value = pu * rated_current
+        else:
+            value = parse_quantity(text, "current", key=key, default_unit=default_unit)
+        _check_range(spec, value, key, "A")
+        return value
+    if kind in KINDS:
+        k = KINDS[kind]
+        value = parse_quantity(raw, k, key=key, allow_zero=spec.allow_zero,
+                               default_unit=default_unit or ("pu" if kind == "per_unit" else None))
+        _check_range(spec, value, key, k.si_unit)
+        return value
+    raise ValueError(f"{key}: field kind {kind!r} is not readable")  # a programming error, not bad input
+
+
+def _check_range(spec: FieldSpec, value: float, key: str, si_unit: str) -> None:
+    lo, hi = spec.lo, spec.hi
+    if (lo is not None and value < lo) or (hi is not None and value > hi):
+        unit = spec.unit if spec.kind != "current_or_pu" else "A"
+        got = _show(value, si_unit, unit)
+        raise InputError(key, f"expected between {_show(lo, si_unit, unit)} and {_show(hi, si_unit, unit)}, "
+                              f"got {got}, which is not plausible for this field")
+
+
+def _section(cls, table: Any, path: str, *, rated_current: float | None = None, skip=()) -> dict[str, Any]:
+    """Parse a table against a dataclass's specs; return the constructor keywords."""
+    if not isinstance(table, dict):
+        raise InputError(path, f"expected a table ([{path}]), got {one_line(table)}")
+    specs = field_specs(cls)
+    for name in table:
+        if name not in specs and name not in skip:
+            raise unknown_key(f"{path}.{name}", name, specs)
+    out: dict[str, Any] = {}
+    for name, spec in specs.items():
+        key = f"{path}.{name}"
+        if name in table:
+            raw = table[name]
+            if spec.kind == "table":
+                if not isinstance(raw, list) or not all(isinstance(r, dict) for r in raw):
+                    raise InputError(key, f"expected a list of tables ([[{key}]]), got {one_line(raw)}")
+                if len(raw) > 50:
+                    raise InputError(key, f"expected at most 50 rows, got {len(raw)}")
+                out[name] = tuple(spec.item(**_section(spec.item, row, f"{key}[{i}]")) for i, row in enumerate(raw))
+            else:
+                out[name] = parse_value(spec, raw, key, rated_current=rated_current)
+        elif spec.required:
+            example = KINDS[spec.kind].example if spec.kind in KINDS else ""
+            hint = f" such as '{example}'" if example else (f" ({', '.join(spec.choices)})" if spec.choices else "")
+            raise InputError(key, f"required key is missing; expected {spec.kind.replace('_', ' ')}{hint}")
+        elif spec.default is not None:
+            out[name] = parse_value(spec, spec.default, key, rated_current=rated_current)
+    return out
+
+
+def case_from_dict(data: Any) -> tuple[MachineCase, list[str]]:
+    """Validate a machine file's plain data. Returns the case and the warnings; raises InputError."""
+    if not isinstance(data, dict):
+        raise InputError("", "a machine file must be a TOML table")
+    for name in data:
+        if name not in TOP_KEYS:
+            raise unknown_key(name, name, TOP_KEYS)
+    fmt = data.get("format")
+    if fmt != FORMAT:
+        raise InputError("format", f"expected \"{FORMAT}\", got {one_line(fmt) if fmt is not None else 'nothing'}")
+    for name in ("sheet", "machine", "supply", "grounding", "instruments"):
+        if name not in data:
+            raise InputError(name, f"required table [{name}] is missing")
+    mtable = data["machine"]
+    if not isinstance(mtable, dict):
+        raise InputError("machine", f"expected a table ([machine]), got {one_line(mtable)}")
+    kind = mtable.get("kind")
+    if kind not in MACHINE_KINDS:
+        raise InputError("machine.kind", f"expected one of {', '.join(MACHINE_KINDS)}, got "
+                                         f"{one_line(kind) if kind is not None else 'nothing'}"
+                                         f"{_suggest(str(kind), MACHINE_KINDS) if isinstance(kind, str) else ''}")
+    cls = MACHINE_KINDS[kind]
+    rated = None
+    if cls is InductionMotor:
+        partial = {k: v for k, v in mtable.items() if k != "locked_rotor_current"}
+        probe = InductionMotor(**_section(InductionMotor, partial, "machine", skip=("kind", "locked_rotor_current")))
+        rated = motor_rated_current(probe)
+    machine = cls(**_section(cls, mtable, "machine", rated_current=rated, skip=("kind",)))
+    if cls is SynchronousGenerator and "load" in data:
+        raise InputError("load", "a generator has no [load] table; the prime mover is machine.prime_mover")
+    load = MotorLoad(**_section(MotorLoad, data["load"], "load")) if "load" in data else None
+    sheet = SheetInfo(**_section(SheetInfo, data["sheet"], "sheet"))
+    study_kw = _section(StudyOptions, data.get("study", {}), "study")
+    study_kw.setdefault("practice", "IEC" if machine.frequency < 55.0 else "IEEE")
+    overrides = data.get("overrides", {})
+    if not isinstance(overrides, dict):
+        raise InputError("overrides", f"expected a table of \"id.setting\" = value, got {one_line(overrides)}")
+    over = []
+    for k, v in overrides.items():
+        if not re.fullmatch(r"[0-9A-Za-z]{1,6}\.[a-z0-9_]{1,40}", k):
+            raise InputError(f"overrides.{k}", "expected a key like \"49.pickup_current\" (function id, a dot, "
+                                               "the setting name)")
+        if not isinstance(v, (str, int, float, bool)):
+            raise InputError(f"overrides.{k}", f"expected a value such as \"180 A\", got {one_line(v)}")
+        over.append((k, v if isinstance(v, str) else str(v).lower() if isinstance(v, bool) else str(v)))
+    case = MachineCase(
+        sheet=sheet, study=StudyOptions(**study_kw), machine=machine, load=load,
+        supply=Supply(**_section(Supply, data["supply"], "supply")),
+        grounding=Grounding(**_section(Grounding, data["grounding"], "grounding")),
+        instruments=Instruments(**_section(Instruments, data["instruments"], "instruments")),
+        overrides=tuple(sorted(over)), entered=data,
+    )
+    return case, validate_case(case)
+
+
+def read_text(path: str | Path) -> str:
+    p = Path(path)
+    try:
+        if p.is_dir():
+            raise InputError(str(path), "expected a machine file (.toml), got a folder")
+        size = p.stat().st_size
+        if size > MAX_FILE_BYTES:
+            raise InputError(str(path), f"expected a machine file under 1 MB, got {size} bytes")
+        raw = p.read_bytes()
+    except FileNotFoundError:
+        raise InputError(str(path), "no such file") from None
+    except PermissionError:
+        raise InputError(str(path), "the file cannot be read (permission denied)") from None
+    except OSError as e:
+        raise InputError(str(path), f"the file cannot be read ({e.strerror or e})") from None
+    try:
+        return raw.decode("utf-8")
+    except UnicodeDecodeError as e:
+        raise InputError(str(path), f"expected UTF-8 text, got a byte that is not UTF-8 at position {e.start}") \
+            from None
+
+
+def parse_toml(text: str, name: str = "") -> dict:
+    try:
+        return tomllib.loads(text)
+    except tomllib.TOMLDecodeError as e:
+        raise InputError(name, f"not valid TOML: {str(e).splitlines()[0]}") from None
+    except RecursionError:
+        raise InputError(name, "not valid TOML: nested too deeply") from None
+
+
+def load_case(path: str | Path) -> tuple[MachineCase, list[str]]:
+    """Read and validate a machine file. Raises InputError; returns the case and its warnings."""
+    data = parse_toml(read_text(path), str(path))
+    return case_from_dict(data)
+
+
+# ---------------------------------------------------------------------------------------------------- writing
+
+
+def file_revision(path: str | Path) -> int | None:
+    """The ``sheet.revision`` of an existing file, or None when there is no readable file."""
+    try:
+        data = tomllib.loads(Path(path).read_text("utf-8"))
+    except (OSError, UnicodeDecodeError, tomllib.TOMLDecodeError):
+        return None
+    rev = data.get("sheet", {}).get("revision", 0) if isinstance(data.get("sheet"), dict) else 0
+    return rev if isinstance(rev, int) and not isinstance(rev, bool) else None
+
+
+def dumps(data: dict) -> str:
+    import tomli_w
+
+    ordered = {k: data[k] for k in TOP_KEYS if k in data}
+    return tomli_w.dumps(ordered)
+
+
+def write_atomic(path: str | Path, text: str | bytes) -> None:
+    """Write ``text`` to ``path`` through a temporary file in the same folder and a rename."""
+    p = Path(path)
+    p.parent.mkdir(parents=True, exist_ok=True)
+    data = text.encode("utf-8") if isinstance(text, str) else text
+    fd, tmp = tempfile.mkstemp(prefix=f".{p.name}.", suffix=".tmp", dir=p.parent)
+    try:
+        with os.fdopen(fd, "wb") as fh:
+            fh.write(data)
+            fh.flush()
+            os.fsync(fh.fileno())
+        os.replace(tmp, p)
+    except BaseException:
+        try:
+            os.unlink(tmp)
+        except OSError:
+            pass
+        raise
+
+
+def write_machine_file(path: str | Path, data: dict) -> None:
+    """Validate ``data`` and write it atomically; refuse to replace a file of higher revision."""
+    case_from_dict(data)  # never write what could not be read back
+    new_rev = data.get("sheet", {}).get("revision", 0)
+    old_rev = file_revision(path)
+    if old_rev is not None and old_rev > new_rev:
+        raise InputError(str(path), f"holds revision {old_rev}, newer than the revision {new_rev} being written; "
+                                    "nothing was written")
+    write_atomic(path, dumps(data))
+
+
+def section_specs(kind: str) -> dict[str, dict[str, FieldSpec]]:
+    """All field specs of a machine kind, by section (the wizard asks through these)."""
+    out = {}
+    for name, cls in SECTIONS.items():
+        cls = MACHINE_KINDS[kind] if name == "machine" else cls
+        if name == "load" and kind != "induction-motor":
+            continue
+        out[name] = {f.name: f.metadata["spec"] for f in fields(cls) if "spec" in f.metadata}
+    return out

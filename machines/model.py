@@ -1,0 +1,466 @@
+"""The machine model: frozen dataclasses holding SI floats, one field per machine-file key.
+
+Each field's name is the canonical quantity name used in the machine file, the settings record and the sheet
+(see the glossary in DEVELOPERS.md). Its ``metadata`` says how the machine file spells it: the kind of quantity,
+the unit a practitioner writes, whether it is required, its default and its plausible range. ``machines.files``
+reads and writes through these specs; ``wizard.flow`` asks through them. Units in brackets are the SI units the
+float holds.
+
+Validation of physical sense lives in :func:`validate_case`: impossible data raise :class:`InputError` naming the
+key; merely suspicious data come back as warnings.
+"""
+
+from __future__ import annotations
+
+import math
+from dataclasses import dataclass, field, fields
+from typing import Any, Literal
+
+from machines.errors import InputError
+
+
+@dataclass(frozen=True)
+class FieldSpec:
+    """How a machine-file key is written and checked.
+
+    kind: a kind from ``machines.units.KINDS``, or ``"text"``, ``"choice"``, ``"integer"``, ``"boolean"``,
+    ``"ratio"`` (instrument-transformer ratio such as ``"200/1 A"``), ``"letter"`` (NEMA code letter),
+    ``"current_or_pu"`` (amperes or per-unit of rated current), ``"table"`` (a list of sub-tables).
+    """
+
+    kind: str
+    unit: str = ""  #: unit a practitioner writes, shown by the wizard and used on the sheet
+    required: bool = False
+    default: Any = None  #: default as written in a file (string with unit), or None
+    lo: float | None = None  #: lowest plausible value, SI
+    hi: float | None = None  #: highest plausible value, SI
+    choices: tuple[str, ...] = ()
+    help: str = ""
+    allow_zero: bool = False
+    item: type | None = None  #: dataclass of the rows of a table
+
+
+def spec(kind: str, unit: str = "", *, required: bool = False, default: Any = None, lo: float | None = None,
+         hi: float | None = None, choices: tuple[str, ...] = (), help: str = "", allow_zero: bool = False,
+         item: type | None = None, value_default: Any = None):
+    """A dataclass field carrying its :class:`FieldSpec` (``value_default`` is the Python default)."""
+    meta = {"spec": FieldSpec(kind, unit, required, default, lo, hi, choices, help, allow_zero, item)}
+    if kind == "table":
+        return field(default=(), metadata=meta)
+    return field(default=value_default, metadata=meta)
+
+
+def field_specs(cls) -> dict[str, FieldSpec]:
+    """The specs of a model dataclass, by key."""
+    return {f.name: f.metadata["spec"] for f in fields(cls) if "spec" in f.metadata}
+
+
+# ---------------------------------------------------------------------------------------------------- parts
+
+
+@dataclass(frozen=True)
+class Ratio:
+    """An instrument-transformer ratio, e.g. 200/1 A or 6600/110 V: primary and secondary [A or V]."""
+
+    primary: float
+    secondary: float
+
+    @property
+    def factor(self) -> float:
+        """primary / secondary [-]"""
+        return self.primary / self.secondary
+
+    def to_secondary(self, value: float) -> float:
+        return value / self.factor
+
+
+@dataclass(frozen=True)
+class HistoryEntry:
+    """One line of the revision history: who changed what, when and why."""
+
+    revision: int = spec("integer", required=True, lo=0, hi=9999, allow_zero=True, value_default=0)
+    date: str = spec("text", help="ISO date, e.g. 2026-11-30", value_default="")
+    by: str = spec("text", value_default="")
+    reason: str = spec("text", value_default="")
+
+
+@dataclass(frozen=True)
+class SheetInfo:
+    """Identification and sign-off data printed on the sheet."""
+
+    tag: str = spec("text", required=True, help="plant tag, e.g. CW-P-201", value_default="")
+    description: str = spec("text", value_default="")
+    site: str = spec("text", value_default="")
+    prepared_by: str = spec("text", value_default="")
+    checked_by: str = spec("text", value_default="")
+    approved_by: str = spec("text", value_default="")
+    revision: int = spec("integer", default=0, lo=0, hi=9999, allow_zero=True, value_default=0)
+    date: str = spec("text", help="date of this revision, ISO form", value_default="")
+    status: str = spec("choice", default="draft", choices=("draft", "issued"), value_default="draft")
+    page_size: str = spec("choice", default="A4", choices=("A4", "letter"), value_default="A4")
+    history: tuple[HistoryEntry, ...] = spec("table", item=HistoryEntry)
+
+
+@dataclass(frozen=True)
+class StudyOptions:
+    """Choices that steer the study."""
+
+    practice: str = spec("choice", choices=("IEC", "IEEE"), help="curve family and capability tables; default IEC "
+                         "at 50 Hz, IEEE at 60 Hz", value_default="IEC")
+
+
+@dataclass(frozen=True)
+class FrequencyBand:
+    """A maker's off-frequency band: from ``low`` to ``high`` [Hz], ``allowed`` accumulated time [s]."""
+
+    low: float = spec("frequency", "Hz", required=True, lo=30.0, hi=70.0, value_default=0.0)
+    high: float = spec("frequency", "Hz", required=True, lo=30.0, hi=70.0, value_default=0.0)
+    allowed: float = spec("time", "s", required=True, lo=0.0, hi=1e8, allow_zero=True, value_default=0.0)
+
+
+@dataclass(frozen=True)
+class FrequencyStage:
+    """A load-shedding or trip stage: ``frequency`` [Hz] for ``time_delay`` [s]."""
+
+    frequency: float = spec("frequency", "Hz", required=True, lo=30.0, hi=70.0, value_default=0.0)
+    time_delay: float = spec("time", "s", required=True, lo=0.0, hi=3600.0, allow_zero=True, value_default=0.0)
+
+
+# ---------------------------------------------------------------------------------------------------- machines
+
+
+@dataclass(frozen=True)
+class InductionMotor:
+    """A three-phase induction motor's nameplate and maker's data [SI]."""
+
+    kind: Literal["induction-motor"] = "induction-motor"
+    rated_output: float = spec("active_power", "kW", required=True, lo=1e3, hi=1e8,
+                               help="shaft output on the nameplate, kW or hp", value_default=0.0)
+    rated_voltage: float = spec("voltage", "kV", required=True, lo=100.0, hi=30e3, value_default=0.0)
+    rated_current: float = spec("current", "A", lo=0.1, hi=1e5, help="full-load current on the nameplate",
+                                value_default=0.0)
+    frequency: float = spec("frequency", "Hz", required=True, lo=45.0, hi=65.0, value_default=0.0)
+    rated_speed: float = spec("speed", "rpm", required=True, lo=10.0, hi=800.0, help="full-load speed",
+                              value_default=0.0)
+    power_factor: float = spec("per_unit", "", required=True, lo=0.3, hi=1.0, value_default=0.0)
+    efficiency: float = spec("per_unit", "", required=True, lo=0.5, hi=0.995, value_default=0.0)
+    service_factor: float = spec("per_unit", "", default="1.0", lo=1.0, hi=1.5, value_default=1.0)
+    locked_rotor_current: float | None = spec("current_or_pu", "pu", lo=0.1, hi=1e6,
+                                              help="starting current at full voltage, A or pu of rated current")
+    locked_rotor_code: str | None = spec("letter", help="NEMA MG 1 code letter, when no current is given")
+    locked_rotor_torque: float = spec("per_unit", "pu", required=True, lo=0.2, hi=4.0,
+                                      help="pu of rated torque", value_default=0.0)
+    breakdown_torque: float = spec("per_unit", "pu", required=True, lo=1.0, hi=5.0, value_default=0.0)
+    safe_stall_time_cold: float = spec("time", "s", required=True, lo=0.5, hi=600.0, value_default=0.0)
+    safe_stall_time_hot: float = spec("time", "s", required=True, lo=0.5, hi=600.0, value_default=0.0)
+    rotor_inertia: float = spec("inertia", "kg*m^2", required=True, lo=1e-3, hi=1e6, value_default=0.0)
+    starts_cold: int = spec("integer", default=2, lo=1, hi=10, value_default=2)
+    starts_hot: int = spec("integer", default=1, lo=1, hi=10, value_default=1)
+    heating_time_constant: float | None = spec("time", "min", lo=60.0, hi=36000.0,
+                                               help="maker's running heating time constant, if known")
+    cooling_time_constant: float | None = spec("time", "min", lo=60.0, hi=72000.0,
+                                               help="maker's standstill cooling time constant, if known")
+    insulation_class: str = spec("choice", default="F", choices=("A", "B", "F", "H"), value_default="F")
+    temperature_rise: float | None = spec("temperature_rise", "K", lo=20.0, hi=180.0,
+                                          help="rated temperature rise by resistance")
+
+
+@dataclass(frozen=True)
+class SynchronousGenerator:
+    """A synchronous generator's nameplate and maker's data [SI; reactances pu on the machine's base]."""
+
+    kind: Literal["synchronous-generator"] = "synchronous-generator"
+    rated_apparent_power: float = spec("apparent_power", "MVA", required=True, lo=1e4, hi=2e9, value_default=0.0)
+    rated_voltage: float = spec("voltage", "kV", required=True, lo=100.0, hi=30e3, value_default=0.0)
+    power_factor: float = spec("per_unit", "", required=True, lo=0.5, hi=1.0, value_default=0.0)
+    frequency: float = spec("frequency", "Hz", required=True, lo=45.0, hi=65.0, value_default=0.0)
+    rated_speed: float = spec("speed", "rpm", required=True, lo=5.0, hi=800.0, value_default=0.0)
+    prime_mover: str = spec("choice", required=True,
+                            choices=("steam-turbine", "gas-turbine", "hydro", "reciprocating-engine"),
+                            value_default="")
+    rotor: str = spec("choice", required=True,
+                      choices=("cylindrical-indirect", "cylindrical-direct", "salient-with-damper",
+                               "salient-without-damper"), value_default="")
+    xd: float = spec("per_unit", "pu", required=True, lo=0.3, hi=4.0, value_default=0.0)
+    xd_transient: float = spec("per_unit", "pu", required=True, lo=0.05, hi=1.0, value_default=0.0)
+    xd_subtransient: float = spec("per_unit", "pu", required=True, lo=0.03, hi=0.8, value_default=0.0)
+    x2: float | None = spec("per_unit", "pu", lo=0.03, hi=1.0, help="negative-sequence reactance")
+    negative_sequence_continuous: float | None = spec("per_unit", "pu", lo=0.01, hi=0.3,
+                                                      help="maker's continuous I2 capability")
+    negative_sequence_k: float | None = spec("time", "s", lo=1.0, hi=200.0, help="maker's I2²t capability")
+    stator_capacitance: float | None = spec("capacitance", "uF", lo=1e-9, hi=1e-4,
+                                            help="per phase to ground, stator winding")
+    third_harmonic_neutral_min: float | None = spec("voltage", "V", lo=0.01, hi=1e4,
+                                                    help="lowest measured third-harmonic neutral voltage, "
+                                                         "primary")
+    motoring_power: float | None = spec("active_power", "kW", lo=1.0, hi=1e9)
+    inertia_constant: float | None = spec("time", "s", lo=0.1, hi=30.0, help="H on the machine's rating")
+    vhz_limit: float = spec("per_unit", "pu", default="1.05", lo=1.0, hi=1.3, value_default=1.05)
+    frequency_limits: tuple[FrequencyBand, ...] = spec("table", item=FrequencyBand)
+
+
+# ---------------------------------------------------------------------------------------------------- system
+
+
+@dataclass(frozen=True)
+class MotorLoad:
+    """The driven load of a motor."""
+
+    inertia: float = spec("inertia", "kg*m^2", required=True, lo=0.0, hi=1e7, allow_zero=True,
+                          help="load inertia referred to the motor shaft (J, or WK² in lb*ft^2)",
+                          value_default=0.0)
+    torque_profile: str = spec("choice", default="quadratic", choices=("quadratic", "constant", "linear"),
+                               value_default="quadratic")
+    torque_at_rated_speed: float = spec("per_unit", "pu", default="1.0", lo=0.0, hi=1.5, allow_zero=True,
+                                        value_default=1.0)
+    breakaway_torque: float = spec("per_unit", "pu", default="0.1", lo=0.0, hi=2.0, allow_zero=True,
+                                   value_default=0.1)
+    minimum_load: float | None = spec("per_unit", "pu", lo=0.0, hi=1.0, allow_zero=True,
+                                      help="lowest normal running current, pu of rated")
+
+
+@dataclass(frozen=True)
+class Supply:
+    """The supply to the machine and its switching device."""
+
+    nominal_voltage: float = spec("voltage", "kV", required=True, lo=100.0, hi=800e3, value_default=0.0)
+    fault_level: float | None = spec("apparent_power", "MVA", lo=1e5, hi=1e11,
+                                     help="three-phase fault level at the machine's bus, maximum")
+    minimum_fault_level: float | None = spec("apparent_power", "MVA", lo=1e5, hi=1e11)
+    source_impedance: float | None = spec("impedance", "ohm", lo=1e-5, hi=1e4)
+    x_over_r: float = spec("per_unit", "", default="15", lo=1.0, hi=100.0, value_default=15.0)
+    minimum_starting_voltage: float | None = spec("per_unit", "pu", lo=0.5, hi=1.1)
+    starter: str = spec("choice", default="breaker", choices=("breaker", "fused-contactor"),
+                        value_default="breaker")
+    contactor_breaking_current: float | None = spec("current", "kA", lo=10.0, hi=2e5)
+    fuse_rating: float | None = spec("current", "A", lo=1.0, hi=1e5)
+    underfrequency_stages: tuple[FrequencyStage, ...] = spec("table", item=FrequencyStage)
+    load_shedding_stages: tuple[FrequencyStage, ...] = spec("table", item=FrequencyStage)
+    system_rating: float | None = spec("apparent_power", "MVA", lo=1e4, hi=1e12,
+                                       help="rating of the islanded system, for the swing equation")
+    system_inertia: float | None = spec("time", "s", lo=0.1, hi=30.0, help="H of the islanded system")
+    transformer_lv_voltage: float | None = spec("voltage", "kV", lo=100.0, hi=30e3,
+                                                help="step-up transformer's LV rated voltage")
+    transformer_vhz_limit: float = spec("per_unit", "pu", default="1.05", lo=1.0, hi=1.3, value_default=1.05)
+
+
+@dataclass(frozen=True)
+class Grounding:
+    """How the system neutral is grounded and what that means for earth faults."""
+
+    method: str = spec("choice", required=True,
+                       choices=("solid", "low-resistance", "high-resistance", "ungrounded",
+                                "distribution-transformer"), value_default="")
+    fault_current_limit: float | None = spec("current", "A", lo=0.1, hi=1e5)
+    system_capacitance: float | None = spec("capacitance", "uF", lo=1e-10, hi=1e-3,
+                                            help="per phase to ground, the rest of the connected system")
+    circuit_capacitance: float | None = spec("capacitance", "uF", lo=1e-10, hi=1e-3,
+                                             help="per phase to ground, this machine's own cable and winding")
+    transformer_ratio: Ratio | None = spec("ratio", "V", help="grounding transformer, e.g. '13800/240 V'")
+    resistor: float | None = spec("impedance", "ohm", lo=1e-3, hi=1e6, help="grounding resistor as installed")
+
+
+@dataclass(frozen=True)
+class Instruments:
+    """Instrument transformers."""
+
+    phase_ct: Ratio = spec("ratio", "A", required=True, help="e.g. '200/1 A'", value_default=Ratio(1.0, 1.0))
+    ground_ct: Ratio | None = spec("ratio", "A", help="core-balance CT, e.g. '50/1 A'")
+    vt: Ratio | None = spec("ratio", "V", help="e.g. '6600/110 V'")
+    neutral_vt: Ratio | None = spec("ratio", "V")
+    phase_ct_class: str | None = spec("text", help="IEEE C57.13 class, e.g. 'C200'")
+    phase_ct_burden: float | None = spec("impedance", "ohm", lo=1e-3, hi=100.0,
+                                         help="total secondary burden: leads and relay")
+    differential_ct: Ratio | None = spec("ratio", "A")
+    differential_ct_class: str | None = spec("text")
+    differential_ct_burden: float | None = spec("impedance", "ohm", lo=1e-3, hi=100.0)
+
+
+# ---------------------------------------------------------------------------------------------------- the case
+
+
+Machine = InductionMotor | SynchronousGenerator
+
+
+@dataclass(frozen=True)
+class MachineCase:
+    """Everything one machine file says, validated.
+
+    ``entered`` holds the file's text values as written (the sheet prints them as entered); it takes no part in
+    equality. ``overrides`` maps ``"<function id>.<setting key>"`` to the engineer's value as written.
+    """
+
+    sheet: SheetInfo
+    study: StudyOptions
+    machine: Machine
+    supply: Supply
+    grounding: Grounding
+    instruments: Instruments
+    load: MotorLoad | None = None
+    overrides: tuple[tuple[str, str], ...] = ()
+    entered: dict = field(default_factory=dict, compare=False, hash=False, repr=False)
+
+    @property
+    def is_motor(self) -> bool:
+        return isinstance(self.machine, InductionMotor)
+
+    def override(self, key: str) -> str | None:
+        """The engineer's value for ``"49.pickup_current"``, as written, or None."""
+        return dict(self.overrides).get(key)
+
+
+# ---------------------------------------------------------------------------------------------------- derived
+
+
+def rated_current_from_output(rated_output: float, rated_voltage: float, efficiency: float,
+                              power_factor: float) -> float:
+    """Full-load line current of a three-phase motor [A].
+
+    Notes
+    -----
+    I = P_out / (√3 · V · η · cos φ), the definition of shaft output, efficiency and power factor.
+
+    Examples
+    --------
+    >>> round(rated_current_from_output(500 * 745.7, 4160.0, 0.95, 0.88), 2)  # REFERENCE 3.4: 61.92 A
+    61.92
+    """
+    return rated_output / (math.sqrt(3.0) * rated_voltage * efficiency * power_factor)
+
+
+def generator_rated_current(rated_apparent_power: float, rated_voltage: float) -> float:
+    """Rated line current of a three-phase generator, I = S / (√3 · V) [A].
+
+    >>> round(generator_rated_current(100e6, 13.8e3), 1)
+    4183.7
+    """
+    return rated_apparent_power / (math.sqrt(3.0) * rated_voltage)
+
+
+def synchronous_speed(frequency: float, poles: int) -> float:
+    """Synchronous speed ω_s = 4π·f / poles [rad/s] (120·f/p in rpm).
+
+    >>> round(synchronous_speed(60.0, 4) * 60 / (2 * math.pi), 6)
+    1800.0
+    """
+    return 4.0 * math.pi * frequency / poles
+
+
+def motor_poles(frequency: float, rated_speed: float) -> int:
+    """Number of poles of an induction motor: the largest even p whose synchronous speed exceeds the rated speed.
+
+    >>> motor_poles(60.0, 1785 * 2 * math.pi / 60)
+    4
+    """
+    rpm = rated_speed * 60.0 / (2.0 * math.pi)
+    poles = int(120.0 * frequency / rpm)
+    poles -= poles % 2
+    return max(poles, 2)
+
+
+def generator_poles(frequency: float, rated_speed: float) -> int:
+    """Poles of a synchronous machine from its speed: p = 120·f / n, the nearest even number."""
+    rpm = rated_speed * 60.0 / (2.0 * math.pi)
+    poles = round(120.0 * frequency / rpm / 2.0) * 2
+    return max(int(poles), 2)
+
+
+def rated_slip(frequency: float, rated_speed: float) -> float:
+    """Full-load slip s = (n_s − n) / n_s [pu]."""
+    ws = synchronous_speed(frequency, motor_poles(frequency, rated_speed))
+    return (ws - rated_speed) / ws
+
+
+def motor_rated_current(m: InductionMotor) -> float:
+    """The nameplate current, or the one computed from output, voltage, efficiency and power factor [A]."""
+    if m.rated_current:
+        return m.rated_current
+    return rated_current_from_output(m.rated_output, m.rated_voltage, m.efficiency, m.power_factor)
+
+
+# ---------------------------------------------------------------------------------------------------- validation
+
+
+def validate_case(case: MachineCase) -> list[str]:
+    """Check physical sense across fields. Raises InputError for the impossible; returns warnings."""
+    warnings: list[str] = []
+    m = case.machine
+    if isinstance(m, InductionMotor):
+        warnings += _validate_motor(m)
+        if case.load is None:
+            raise InputError("load", "a motor needs a [load] table (at least load.inertia)")
+    else:
+        warnings += _validate_generator(m)
+    if case.instruments.phase_ct.primary <= 0 or case.instruments.phase_ct.secondary <= 0:
+        raise InputError("instruments.phase_ct", "expected a CT ratio with positive primary and secondary such "
+                         "as '200/1 A'")
+    s = case.supply
+    if s.minimum_fault_level and s.fault_level and s.minimum_fault_level > s.fault_level:
+        raise InputError("supply.minimum_fault_level", "expected at most supply.fault_level, got a larger value")
+    if abs(s.nominal_voltage - m.rated_voltage) > 0.15 * m.rated_voltage:
+        warnings.append(f"supply.nominal_voltage ({s.nominal_voltage / 1e3:.4g} kV) differs from the machine's "
+                        f"rated voltage ({m.rated_voltage / 1e3:.4g} kV) by more than 15 %: check the file")
+    g = case.grounding
+    if g.method in ("low-resistance", "solid") and g.fault_current_limit is None and g.method == "low-resistance":
+        warnings.append("grounding.fault_current_limit is missing: earth-fault sensitivity cannot be judged")
+    return warnings
+
+
+def _validate_motor(m: InductionMotor) -> list[str]:
+    warnings = []
+    computed = rated_current_from_output(m.rated_output, m.rated_voltage, m.efficiency, m.power_factor)
+    if m.rated_current:
+        dev = m.rated_current / computed - 1.0
+        if abs(dev) > 0.10:
+            warnings.append(f"machine.rated_current {m.rated_current:.4g} A differs by {dev:+.0%} from "
+                            f"{computed:.4g} A computed from output, voltage, efficiency and power factor")
+    i_rated = m.rated_current or computed
+    if m.locked_rotor_current is None and m.locked_rotor_code is None:
+        raise InputError("machine.locked_rotor_current", "expected a locked-rotor current (A or pu) or "
+                         "machine.locked_rotor_code (NEMA letter), got neither")
+    if m.locked_rotor_current is not None and m.locked_rotor_current < 2.0 * i_rated:
+        raise InputError("machine.locked_rotor_current", f"expected at least 2 pu of rated current, got "
+                         f"{m.locked_rotor_current / i_rated:.3g} pu ({m.locked_rotor_current:.4g} A)")
+    if m.safe_stall_time_hot > m.safe_stall_time_cold:
+        raise InputError("machine.safe_stall_time_hot", f"expected at most the cold safe stall time "
+                         f"({m.safe_stall_time_cold:.4g} s), got {m.safe_stall_time_hot:.4g} s")
+    f = m.frequency
+    ws_max = synchronous_speed(f, 2)
+    if m.rated_speed >= ws_max:
+        raise InputError("machine.rated_speed", f"expected below the 2-pole synchronous speed "
+                         f"{120 * f:.0f} rpm at {f:g} Hz, got {m.rated_speed * 30 / math.pi:.0f} rpm")
+    rpm = m.rated_speed * 30.0 / math.pi
+    near = generator_poles(f, m.rated_speed)
+    if rpm >= 120.0 * f / near:
+        raise InputError("machine.rated_speed", f"expected a full-load speed below synchronous speed "
+                         f"({120 * f / near:.0f} rpm for {near} poles at {f:g} Hz), got {rpm:.0f} rpm")
+    s = rated_slip(f, m.rated_speed)
+    if not 0.0 < s < 0.1:
+        raise InputError("machine.rated_speed", f"expected a full-load slip between 0 and 10 %, got "
+                         f"{s:.1%} ({rpm:.0f} rpm)")
+    if m.breakdown_torque <= 1.0:
+        raise InputError("machine.breakdown_torque", "expected more than 1 pu of rated torque")
+    if m.starts_hot > m.starts_cold:
+        warnings.append("machine.starts_hot is larger than machine.starts_cold: check the maker's data")
+    return warnings
+
+
+def _validate_generator(g: SynchronousGenerator) -> list[str]:
+    warnings = []
+    if not g.xd_subtransient <= g.xd_transient <= g.xd:
+        raise InputError("machine.xd_transient", f"expected xd'' ≤ xd' ≤ xd, got {g.xd_subtransient:g} / "
+                         f"{g.xd_transient:g} / {g.xd:g} pu")
+    poles = generator_poles(g.frequency, g.rated_speed)
+    ws = synchronous_speed(g.frequency, poles)
+    if abs(g.rated_speed / ws - 1.0) > 0.005:
+        raise InputError("machine.rated_speed", f"expected a synchronous speed 120·f/p at {g.frequency:g} Hz "
+                         f"(e.g. {ws * 30 / math.pi:.0f} rpm), got {g.rated_speed * 30 / math.pi:.1f} rpm")
+    salient = g.rotor.startswith("salient")
+    if salient and poles == 2:
+        warnings.append("machine.rotor is salient but the speed gives a 2-pole machine: check the rotor type")
+    bands = g.frequency_limits
+    for i, b in enumerate(bands):
+        if b.low >= b.high:
+            raise InputError(f"machine.frequency_limits[{i}].low", f"expected below high ({b.high:g} Hz), got "
+                             f"{b.low:g} Hz")
+    return warnings

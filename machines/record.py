@@ -1,0 +1,265 @@
+"""The settings record (format ``relaywright.settings/1``) and its JSON form.
+
+A study returns a :class:`SettingsRecord`; the terminal table, the JSON and the PDF sheet are all drawn from it.
+Values are SI numbers in primary terms, with the relay-side (secondary) value beside them where an instrument
+transformer applies. The record also carries what the sheet needs to draw (curves as point lists, circles,
+bands), so that ``reports`` only lays out.
+
+The inputs fingerprint is the SHA-256 of a canonical JSON form of the validated inputs: SI floats rounded to
+ten significant figures, keys sorted, sheet-only data (names, dates, revision, status) left out. The same machine
+therefore gives the same fingerprint whatever order its keys were written in and whatever units were used.
+"""
+
+from __future__ import annotations
+
+import dataclasses
+import hashlib
+import json
+import math
+from dataclasses import dataclass, field
+from typing import Any, Literal
+
+FORMAT = "relaywright.settings/1"
+
+Source = Literal["standard", "common-practice", "maker-data", "entered", "override", "derived"]
+Status = Literal["ok", "warn", "fail"]
+
+
+@dataclass
+class Setting:
+    """One setting or derived value: primary value and unit, relay-side value where a CT/VT applies.
+
+    ``value`` is a float (SI), a bool, a string (curve names) or a list of dicts (stages). ``label`` is the
+    name printed on the sheet ("Pickup current"); ``note`` a short remark ("upper bound of code range").
+    """
+
+    value: Any
+    unit: str = ""
+    source: Source = "standard"
+    secondary: float | None = None
+    secondary_unit: str = ""
+    label: str = ""
+    note: str = ""
+
+    def to_json(self) -> dict:
+        out: dict[str, Any] = {"value": _clean(self.value), "unit": self.unit}
+        if self.secondary is not None:
+            out["secondary"] = _clean(self.secondary)
+            out["secondary_unit"] = self.secondary_unit
+        out["source"] = self.source
+        if self.label:
+            out["label"] = self.label
+        if self.note:
+            out["note"] = self.note
+        return out
+
+
+@dataclass
+class Check:
+    """A finding: ``ok``, ``warn`` or ``fail`` with a sentence a practitioner understands."""
+
+    status: Status
+    message: str
+
+    def to_json(self) -> dict:
+        return {"status": self.status, "message": self.message}
+
+
+@dataclass
+class TestPoint:
+    """A commissioning injection: apply ``applied`` (secondary units when ``secondary``) and expect a time.
+
+    ``expected_time`` None means "must not operate" (e.g. a pickup test just below the setting).
+    ``tolerance_time`` is the half-width of the accepted time band [s]; ``tolerance_rule`` says how it was got.
+    """
+
+    quantity: str
+    applied: float
+    applied_unit: str
+    expected_time: float | None
+    tolerance_time: float = 0.0
+    secondary: bool = True
+    initial_state: str = ""
+    applied_primary: float | None = None
+    applied_primary_unit: str = ""
+    description: str = ""
+    tolerance_rule: str = ""
+
+    def to_json(self) -> dict:
+        return {k: _clean(v) for k, v in dataclasses.asdict(self).items()}
+
+
+@dataclass
+class Series:
+    """A polyline or point set of a drawing, in the drawing's axis units."""
+
+    label: str
+    points: list[tuple[float, float]]
+    style: Literal["line", "dashed", "dotted", "points", "step"] = "line"
+
+    def to_json(self) -> dict:
+        return {"label": self.label, "style": self.style, "points": [[_clean(x), _clean(y)] for x, y in self.points]}
+
+
+@dataclass
+class Circle:
+    """A circle of an R-X drawing: centre (r, x) and radius, in the drawing's axis units."""
+
+    label: str
+    center: tuple[float, float]
+    radius: float
+    style: Literal["line", "dashed", "dotted"] = "line"
+
+    def to_json(self) -> dict:
+        return {"label": self.label, "center": [_clean(c) for c in self.center], "radius": _clean(self.radius),
+                "style": self.style}
+
+
+@dataclass
+class Drawing:
+    """What a sheet drawing shows. ``kind``: ``time-current`` (log-log), ``r-x``, ``frequency``, ``i2-time``."""
+
+    kind: str
+    title: str
+    x_label: str
+    y_label: str
+    log_x: bool = False
+    log_y: bool = False
+    series: list[Series] = field(default_factory=list)
+    circles: list[Circle] = field(default_factory=list)
+    x_range: tuple[float, float] | None = None
+    y_range: tuple[float, float] | None = None
+
+    def to_json(self) -> dict:
+        out = {"kind": self.kind, "title": self.title, "x_label": self.x_label, "y_label": self.y_label,
+               "log_x": self.log_x, "log_y": self.log_y, "series": [s.to_json() for s in self.series],
+               "circles": [c.to_json() for c in self.circles]}
+        if self.x_range:
+            out["x_range"] = [_clean(v) for v in self.x_range]
+        if self.y_range:
+            out["y_range"] = [_clean(v) for v in self.y_range]
+        return out
+
+
+@dataclass
+class FunctionSettings:
+    """What one protection function's rule returns."""
+
+    id: str
+    title: str
+    settings: dict[str, Setting]
+    basis: str
+    references: list[str] = field(default_factory=list)
+    checks: list[Check] = field(default_factory=list)
+    test_points: list[TestPoint] = field(default_factory=list)
+    drawings: list[Drawing] = field(default_factory=list)
+    enabled: bool = True
+
+    def to_json(self) -> dict:
+        return {"id": self.id, "title": self.title, "enabled": self.enabled,
+                "settings": {k: v.to_json() for k, v in self.settings.items()},
+                "basis": self.basis, "references": list(self.references),
+                "checks": [c.to_json() for c in self.checks],
+                "test_points": [t.to_json() for t in self.test_points]}
+
+
+@dataclass
+class SettingsRecord:
+    """The whole study result for one machine."""
+
+    tag: str
+    kind: str
+    revision: int
+    practice: str
+    inputs_fingerprint: str
+    derived: dict[str, Setting]
+    functions: list[FunctionSettings]
+    checks: list[Check]
+    drawings: list[Drawing] = field(default_factory=list)
+    sheet: dict[str, Any] = field(default_factory=dict)
+    inputs: dict[str, Any] = field(default_factory=dict)
+
+    def all_checks(self) -> list[tuple[str, Check]]:
+        """Every finding with the id of the function it belongs to ('' for machine-wide), fails first."""
+        items = [("", c) for c in self.checks]
+        for f in self.functions:
+            items += [(f.id, c) for c in f.checks]
+        order = {"fail": 0, "warn": 1, "ok": 2}
+        return sorted(items, key=lambda ic: order[ic[1].status])
+
+    @property
+    def worst(self) -> Status:
+        statuses = {c.status for _, c in self.all_checks()}
+        return "fail" if "fail" in statuses else "warn" if "warn" in statuses else "ok"
+
+    def function(self, fid: str) -> FunctionSettings | None:
+        return next((f for f in self.functions if f.id == fid), None)
+
+    def to_json(self) -> dict:
+        drawings = list(self.drawings)
+        for f in self.functions:
+            drawings += f.drawings
+        return {
+            "format": FORMAT,
+            "tag": self.tag,
+            "kind": self.kind,
+            "revision": self.revision,
+            "practice": self.practice,
+            "inputs_fingerprint": self.inputs_fingerprint,
+            "derived": {k: v.to_json() for k, v in self.derived.items()},
+            "functions": [f.to_json() for f in self.functions],
+            "checks": [c.to_json() for c in self.checks],
+            "drawings": [d.to_json() for d in drawings],
+            "sheet": self.sheet,
+            "inputs": self.inputs,
+        }
+
+    def dumps(self) -> str:
+        return json.dumps(self.to_json(), indent=2, ensure_ascii=False, allow_nan=False)
+
+
+def _clean(v: Any) -> Any:
+    """JSON-safe value: floats rounded to 6 significant figures, non-finite floats as None."""
+    if isinstance(v, bool) or v is None or isinstance(v, (str, int)):
+        return v
+    if isinstance(v, float):
+        if not math.isfinite(v):
+            return None
+        return float(f"{v:.6g}")
+    if isinstance(v, dict):
+        return {k: _clean(x) for k, x in v.items()}
+    if isinstance(v, (list, tuple)):
+        return [_clean(x) for x in v]
+    if hasattr(v, "item"):  # numpy scalar
+        return _clean(v.item())
+    return str(v)
+
+
+# ---------------------------------------------------------------------------------------------------- fingerprint
+
+_SHEET_ONLY = {"sheet"}  # names, dates, revision, status: not inputs to the study (the tag is added back)
+
+
+def canonical_inputs(case) -> dict:
+    """The validated inputs as plain data: SI floats to 10 significant figures, sorted keys, no sheet data."""
+
+    def plain(obj: Any) -> Any:
+        if dataclasses.is_dataclass(obj):
+            return {f.name: plain(getattr(obj, f.name)) for f in dataclasses.fields(obj)
+                    if f.name != "entered" and f.name not in _SHEET_ONLY}
+        if isinstance(obj, float):
+            return float(f"{obj:.10g}")
+        if isinstance(obj, (list, tuple)):
+            return [plain(x) for x in obj]
+        return obj
+
+    data = plain(case)
+    data["tag"] = case.sheet.tag
+    data["overrides"] = sorted([list(p) for p in case.overrides])
+    return data
+
+
+def inputs_fingerprint(case) -> str:
+    """``sha256:<hex>`` of the canonical inputs (see module docstring)."""
+    text = json.dumps(canonical_inputs(case), sort_keys=True, separators=(",", ":"), ensure_ascii=True)
+    return "sha256:" + hashlib.sha256(text.encode("ascii")).hexdigest()

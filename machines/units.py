@@ -1,0 +1,231 @@
+"""Unit-aware parsing: the one place where text from people and files becomes SI floats.
+
+One pint registry per process, built on first use (building it takes a good part of a second, so nothing here
+runs at import time). Text never reaches pint whole: a linear regular expression splits it into a number and a
+unit first, the number is read by Python's ``float`` and only the unit (a short, checked string of names, powers
+and operators) is handed to ``UnitRegistry.parse_units``. That keeps pathological text such as ``10 ** 10 ** 10 A``
+from ever being evaluated and bounds the time of a parse.
+"""
+
+from __future__ import annotations
+
+import math
+import re
+from dataclasses import dataclass
+from functools import lru_cache
+
+from machines.errors import InputError, one_line
+
+MAX_TEXT = 120  # characters; a quantity a person writes is far shorter
+
+
+@dataclass(frozen=True)
+class Kind:
+    """A kind of quantity a field expects."""
+
+    name: str  #: canonical name, e.g. "current"
+    noun: str  #: "a current"
+    si_unit: str  #: the unit floats are returned in
+    example: str  #: shown in error messages
+    reference: str  #: a unit of this kind's dimensionality (pint syntax)
+    positive: bool = True  #: negative values are impossible
+
+
+KINDS: dict[str, Kind] = {
+    k.name: k
+    for k in (
+        Kind("current", "a current", "A", "96 A", "A"),
+        Kind("voltage", "a voltage", "V", "6.6 kV", "V"),
+        Kind("active_power", "an active or shaft power", "W", "1500 hp", "W"),
+        Kind("apparent_power", "an apparent power", "VA", "12.5 MVA", "W"),
+        Kind("time", "a time", "s", "12 s", "s"),
+        Kind("frequency", "a frequency", "Hz", "60 Hz", "Hz"),
+        Kind("speed", "a rotational speed", "rad/s", "1785 rpm", "Hz"),
+        Kind("inertia", "a moment of inertia", "kg*m^2", "28 kg*m^2", "kg*m^2"),
+        Kind("impedance", "an impedance", "ohm", "0.5 ohm", "ohm"),
+        Kind("capacitance", "a capacitance", "F", "0.25 uF", "F"),
+        Kind("per_unit", "a per-unit value", "", "0.2 pu", "pu"),
+        Kind("temperature_rise", "a temperature rise", "K", "80 K", "K"),
+        Kind("torque", "a torque", "N*m", "5000 N*m", "N*m"),
+    )
+}
+
+# What a person wrote instead, by reference unit (first match wins).
+_NOUNS = (
+    ("A", "a current"), ("V", "a voltage"), ("W", "a power"), ("s", "a time"), ("Hz", "a frequency or speed"),
+    ("kg*m^2", "a moment of inertia"), ("ohm", "an impedance"), ("F", "a capacitance"), ("pu", "a plain number"),
+    ("K", "a temperature"), ("N*m", "a torque or energy"), ("kg", "a mass"), ("m", "a length"),
+    ("m^2", "an area"), ("m^3", "a volume"),
+)
+
+
+@lru_cache(maxsize=None)
+def _dimensionality(unit: str):
+    return registry().parse_units(unit).dimensionality
+
+
+# number, then an optional unit; both parts linear, no nested optional groups.
+_NUMBER = re.compile(r"[+-]?(?:\d{1,30}(?:\.\d{0,30})?|\.\d{1,30})(?:[eE][+-]?\d{1,4})?")
+_NAME = r"(?:[A-Za-zµμΩ°%_]{1,16})"
+_POWER = r"(?:(?:\^|\*\*)-?[1-4])?"
+_UNIT = re.compile(rf"{_NAME}{_POWER}(?:\s*[*/·]\s*{_NAME}{_POWER}|\s+{_NAME}{_POWER}){{0,5}}")
+_SUPERSCRIPTS = str.maketrans({"²": "^2", "³": "^3", "⁻": "-", "¹": "^1"})
+_ALIASES = {"p.u.": "pu", "p.u": "pu", "Ohm": "ohm", "ohms": "ohm", "Ohms": "ohm", "r/min": "rpm", "RPM": "rpm"}
+
+
+@lru_cache(maxsize=1)
+def registry():
+    """The process's single pint ``UnitRegistry``, built on first call.
+
+    Adds ``per_unit = pu``, reactive power ``var`` and lets ``%`` and ``µ`` be written as people write them.
+    """
+    import pint
+
+    ureg = pint.UnitRegistry(autoconvert_offset_to_baseunit=False)
+    ureg.define("per_unit = 1 = pu")
+    ureg.define("volt_ampere_reactive = volt_ampere = var = VAr")
+    return ureg
+
+
+def quantity(value: float, unit: str):
+    """Build a pint quantity in code (display edges only)."""
+    return registry().Quantity(value, unit)
+
+
+def convert(value: float, from_unit: str, to_unit: str) -> float:
+    """Convert a float between two units of the same kind, through pint."""
+    if from_unit == to_unit:
+        return float(value)
+    return float(registry().Quantity(value, from_unit).m_as(to_unit))
+
+
+def _kind(expected: str | Kind) -> Kind:
+    if isinstance(expected, Kind):
+        return expected
+    try:
+        return KINDS[expected]
+    except KeyError:
+        raise ValueError(f"unknown kind of quantity {expected!r}") from None
+
+
+def _fail(key: str, text: str, detail: str, kind: Kind) -> InputError:
+    return InputError(key, f"{detail}; expected {kind.noun} such as '{kind.example}', got {one_line(text)}")
+
+
+@lru_cache(maxsize=512)
+def _parse_units(unit_text: str, as_delta: bool):
+    return registry().parse_units(unit_text, as_delta=as_delta)
+
+
+def parse_quantity(
+    text: str | int | float,
+    expected_dimension: str | Kind,
+    to_unit: str | None = None,
+    *,
+    key: str = "",
+    default_unit: str | None = None,
+    allow_negative: bool = False,
+    allow_zero: bool = False,
+) -> float:
+    """Read a quantity written by a person and return its magnitude in ``to_unit`` (SI by default).
+
+    Parameters
+    ----------
+    text : the quantity as written, e.g. ``"6.6 kV"``, ``"1500 hp"``, ``"28 kg*m^2"``, ``"12 %"``, ``"0.2 pu"``.
+        A TOML number (int or float) or a bare number takes ``default_unit``; without one, a bare number is
+        accepted only for per-unit kinds.
+    expected_dimension : a kind name from ``KINDS`` (``"current"``, ``"voltage"``, ``"active_power"``, ...).
+    to_unit : unit of the returned float; the kind's SI unit when omitted.
+    key : key path named in errors, e.g. ``"machine.rated_current"``.
+    default_unit : unit that a bare number is taken in (the wizard shows it beside the question).
+    allow_negative, allow_zero : whether such values make physical sense for the field.
+
+    Raises
+    ------
+    InputError with a one-line message naming the key, the value and what was expected.
+
+    Examples
+    --------
+    >>> parse_quantity("6.6 kV", "voltage")
+    6600.0
+    >>> round(parse_quantity("1500 hp", "active_power", "kW"), 2)
+    1118.55
+    >>> parse_quantity("12 %", "per_unit")
+    0.12
+    """
+    kind = _kind(expected_dimension)
+    to_unit = kind.si_unit if to_unit is None else to_unit
+    if isinstance(text, bool):
+        raise _fail(key, str(text), "true/false is not a quantity", kind)
+    if isinstance(text, (int, float)):
+        value = float(text)
+        unit_text = ""
+        shown = repr(text)
+    elif isinstance(text, str):
+        shown = text
+        if len(text) > MAX_TEXT:
+            raise _fail(key, text, f"text is too long ({len(text)} characters, at most {MAX_TEXT})", kind)
+        s = text.strip()
+        if not s:
+            raise _fail(key, text, "the value is empty", kind)
+        if "," in s:
+            raise _fail(key, text, "commas are not accepted (write '4.16 kV', not '4,16 kV' or '4,160 V')", kind)
+        if re.match(r"[+-]?(nan|inf)", s, re.IGNORECASE):
+            raise _fail(key, text, "not a finite number", kind)
+        m = _NUMBER.match(s)
+        if not m:
+            raise _fail(key, text, "it does not start with a number", kind)
+        try:
+            value = float(m.group(0))
+        except ValueError:  # pragma: no cover - the pattern admits only float syntax
+            raise _fail(key, text, "it does not start with a number", kind) from None
+        unit_text = s[m.end():].strip()
+    else:
+        raise _fail(key, repr(text), f"a {type(text).__name__} is not a quantity", kind)
+
+    if not math.isfinite(value):
+        raise _fail(key, shown, "not a finite number", kind)
+
+    if not unit_text:
+        if default_unit is not None:
+            unit_text = default_unit
+        elif kind.name == "per_unit":
+            unit_text = "pu"
+        else:
+            raise _fail(key, shown, "the unit is missing", kind)
+
+    unit_text = _ALIASES.get(unit_text, unit_text).translate(_SUPERSCRIPTS)
+    if kind.name == "temperature_rise":  # a rise is a difference: 80 degC of rise is 80 K
+        unit_text = re.sub(r"\bdeg([CF])\b", r"delta_deg\1", unit_text)
+    if not _UNIT.fullmatch(unit_text):
+        raise _fail(key, shown, f"'{unit_text[:30]}' is not a unit this tool reads", kind)
+    try:
+        units = _parse_units(unit_text, kind.name == "temperature_rise")
+    except Exception:  # pint raises several types; any of them means the unit is not known
+        raise _fail(key, shown, f"unknown unit '{unit_text[:30]}' (units are case-sensitive: 'A', 'kV', 'MVA', 'mA')",
+                    kind) from None
+
+    ureg = registry()
+    dim = units.dimensionality
+    if dim != _dimensionality(kind.reference):
+        what = next((noun for ref, noun in _NOUNS if _dimensionality(ref) == dim), "a quantity of another kind")
+        raise _fail(key, shown, f"{one_line(shown)} is {what}", kind)
+    unit_names = str(units)
+    if kind.name == "apparent_power" and "volt_ampere" not in unit_names:
+        raise _fail(key, shown, "an apparent power is written in VA, kVA or MVA", kind)
+    if kind.name == "active_power" and "volt_ampere" in unit_names:
+        raise _fail(key, shown, "VA and var are apparent and reactive power; give W, kW, MW or hp", kind)
+    if kind.name == "speed" and units == ureg.parse_units("Hz"):
+        raise _fail(key, shown, "give a speed in rpm or rad/s, not Hz", kind)
+
+    try:
+        result = float(ureg.Quantity(value, units).m_as(to_unit))
+    except Exception:
+        raise _fail(key, shown, f"cannot be expressed in {to_unit}", kind) from None
+    if not math.isfinite(result):
+        raise _fail(key, shown, "not a finite number", kind)
+    if result < 0 and not (allow_negative or not kind.positive):
+        raise _fail(key, shown, "a negative value is impossible here", kind)
+    if result == 0 and not allow_zero:
+        raise _fail(key, shown, "zero is impossible here", kind)
+    return result

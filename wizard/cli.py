@@ -1,0 +1,202 @@
+"""The ``relaywright`` command line (typer). Every command is thin: parse, call the study, hand the record on.
+
+Start-up matters: this module imports typer and the standard library only; every heavy import (pint, numpy,
+reportlab, questionary, pyhanko) lives inside the command that needs it, so ``relaywright --help`` stays fast.
+
+Exit codes: 0 done; 1 settings produced but a check failed (or a signature/fingerprint did not verify);
+2 bad input or usage. Errors are one line on stderr, never a traceback.
+"""
+
+from __future__ import annotations
+
+import sys
+from pathlib import Path
+from typing import Annotated, Optional
+
+import typer
+
+from machines.notices import CAUTION_LINE
+from wizard import __version__
+
+app = typer.Typer(
+    name="relaywright",
+    help="Protection settings for medium-voltage motors and plant generators: from nameplate and system data to "
+         "a checked, signed settings sheet.",
+    epilog=CAUTION_LINE,
+    add_completion=False,
+    no_args_is_help=True,
+    rich_markup_mode=None,
+    pretty_exceptions_enable=False,
+)
+
+EXIT_OK, EXIT_CHECK_FAILED, EXIT_BAD_INPUT = 0, 1, 2
+
+
+def caution(err: bool = False) -> None:
+    """The one-line caution every screen carries."""
+    typer.echo(CAUTION_LINE, err=err)
+
+
+def _version(value: bool) -> None:
+    if value:
+        typer.echo(f"relaywright {__version__}")
+        raise typer.Exit(EXIT_OK)
+
+
+@app.callback()
+def _root(
+    version: Annotated[bool, typer.Option("--version", callback=_version, is_eager=True,
+                                          help="Print the version and exit.")] = False,
+) -> None:
+    """relaywright: settings proposals for motor and generator protection."""
+
+
+def _study(path: Path):
+    """Read, validate and study one machine file: (case, record)."""
+    from machines.files import load_case
+    from machines.study import run_study
+
+    case, warnings = load_case(path)
+    return case, run_study(case, warnings)
+
+
+@app.command("settings")
+def settings_cmd(
+    file: Annotated[Path, typer.Argument(help="Machine file (.toml).")],
+    json_out: Annotated[bool, typer.Option("--json", help="Print the settings record as JSON.")] = False,
+) -> None:
+    """Compute the settings for one machine and print them (table or JSON)."""
+    _, record = _study(file)
+    if json_out:
+        typer.echo(record.dumps())
+        caution(err=True)
+    else:
+        from reports.console import print_record
+
+        print_record(record, caution=CAUTION_LINE)
+    raise typer.Exit(EXIT_CHECK_FAILED if record.worst == "fail" else EXIT_OK)
+
+
+@app.command("sheet")
+def sheet_cmd(
+    file: Annotated[Path, typer.Argument(help="Machine file (.toml).")],
+    output: Annotated[Optional[Path], typer.Option("-o", "--output", help="PDF to write (default: "
+                                                   "<tag>-rev<N>.pdf beside the machine file).")] = None,
+    page_size: Annotated[Optional[str], typer.Option("--page-size", help="A4 or letter (default: the file's "
+                                                     "sheet.page_size).")] = None,
+    sign: Annotated[Optional[Path], typer.Option("--sign", help="PKCS#12 key to sign the PDF with (password "
+                                                 "from RELAYWRIGHT_SIGN_PASSWORD, else asked).")] = None,
+) -> None:
+    """Write the PDF settings sheet for one machine (optionally signed)."""
+    from reports.sheet_command import make_sheet
+
+    code = make_sheet(file, output=output, page_size=page_size, sign=sign)
+    caution()
+    raise typer.Exit(code)
+
+
+@app.command("verify")
+def verify_cmd(
+    pdf: Annotated[Path, typer.Argument(help="Signed settings sheet (.pdf).")],
+    machine: Annotated[Optional[Path], typer.Option("--machine", help="Machine file the sheet should match.")]
+    = None,
+) -> None:
+    """Check a sheet's digital signature and, with --machine, that it still matches the machine file."""
+    from reports.signing import verify_command
+
+    code = verify_command(pdf, machine)
+    caution()
+    raise typer.Exit(code)
+
+
+@app.command("new")
+def new_cmd(
+    answers: Annotated[Optional[Path], typer.Option("--answers", help="Answer the questions from this (possibly "
+                                                    "partial) machine file instead of prompting.")] = None,
+    output: Annotated[Optional[Path], typer.Option("-o", "--output", help="Machine file to write.")] = None,
+    resume: Annotated[Optional[Path], typer.Option("--resume", help="Continue from a saved draft.")] = None,
+) -> None:
+    """Answer questions about a motor or generator and write its machine file and sheet."""
+    from wizard.session import run_new
+
+    raise typer.Exit(run_new(answers=answers, output=output, resume=resume))
+
+
+@app.command("revise")
+def revise_cmd(
+    file: Annotated[Path, typer.Argument(help="Machine file to revise.")],
+    answers: Annotated[Optional[Path], typer.Option("--answers", help="Take the changed answers from this "
+                                                    "partial machine file instead of prompting.")] = None,
+) -> None:
+    """Ask again with the file's answers as defaults, bump the revision and show what changed."""
+    from wizard.session import run_revise
+
+    raise typer.Exit(run_revise(file, answers=answers))
+
+
+@app.command("batch")
+def batch_cmd(
+    directory: Annotated[Path, typer.Argument(help="Folder searched recursively for machine files.")],
+    output: Annotated[Path, typer.Option("-o", "--output", help="Folder for sheets and records.")],
+    workers: Annotated[Optional[int], typer.Option("--workers", min=1, help="Processes (default: CPUs).")] = None,
+    force: Annotated[bool, typer.Option("--force", help="Rebuild sheets that are already current.")] = False,
+) -> None:
+    """Settings, sheet and JSON record for every machine file under a folder."""
+    from wizard.batch import run_batch
+
+    code = run_batch(directory, output, workers=workers, force=force)
+    caution()
+    raise typer.Exit(code)
+
+
+@app.command("diff")
+def diff_cmd(
+    old: Annotated[Path, typer.Argument(help="Earlier machine file.")],
+    new: Annotated[Path, typer.Argument(help="Later machine file.")],
+) -> None:
+    """Inputs and settings that changed between two machine files, old → new."""
+    from machines.compare import compare
+    from reports.console import print_changes
+
+    old_case, old_record = _study(old)
+    new_case, new_record = _study(new)
+    print_changes(compare(old_case, old_record, new_case, new_record))
+    caution()
+
+
+@app.command("demo")
+def demo_cmd(
+    directory: Annotated[Path, typer.Argument(help="Folder to write the demo plant into.")] = Path(
+        "relaywright-demo"),
+) -> None:
+    """Write the invented demo plant's machine files and their settings sheets."""
+    from wizard.demo_plant import write_demo
+
+    code = write_demo(directory)
+    caution()
+    raise typer.Exit(code)
+
+
+def main() -> None:
+    """Entry point: run the app, turning bad input into one line on stderr and exit code 2."""
+    from machines.errors import InputError
+
+    try:
+        app()
+    except InputError as e:
+        typer.echo(f"error: {e}", err=True)
+        sys.exit(EXIT_BAD_INPUT)
+    except KeyboardInterrupt:
+        typer.echo("interrupted", err=True)
+        sys.exit(130)
+    except OSError as e:
+        typer.echo(f"error: {e.filename or ''}: {e.strerror or e}", err=True)
+        sys.exit(EXIT_BAD_INPUT)
+    except Exception as e:  # a bug must still not print a traceback at a practitioner
+        typer.echo(f"error: could not complete ({type(e).__name__}: {str(e).splitlines()[0] if str(e) else ''}); "
+                   "nothing was written; please report this with the input file", err=True)
+        sys.exit(EXIT_BAD_INPUT)
+
+
+if __name__ == "__main__":  # pragma: no cover
+    main()
