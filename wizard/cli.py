@@ -156,7 +156,7 @@ def diff_cmd(
 ) -> None:
     """Inputs and settings that changed between two machine files, old → new."""
     from machines.compare import compare
-    from reports.console import print_changes
+    from reports.changes import print_changes
 
     old_case, old_record = _study(old)
     new_case, new_record = _study(new)
