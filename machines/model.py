@@ -322,7 +322,7 @@ def rated_current_from_output(rated_output: float, rated_voltage: float, efficie
 
     Examples
     --------
-    >>> round(rated_current_from_output(500 * 745.7, 4160.0, 0.95, 0.88), 2)  # REFERENCE 3.4: 61.92 A
+    >>> round(rated_current_from_output(500 * 746.0, 4160.0, 0.95, 0.88), 2)  # REFERENCE 3.4 (1 hp = 746 W)
     61.92
     """
     return rated_output / (math.sqrt(3.0) * rated_voltage * efficiency * power_factor)
