@@ -9,10 +9,16 @@ class InputError(ValueError):
     The message is a single line: ``key: expected <what>, got <value>``. Commands print it as it is and exit 2.
     """
 
-    def __init__(self, key: str, message: str):
+    def __init__(self, key: str, message: str, source: str = ""):
         self.key = key
         self.detail = message
-        super().__init__(f"{key}: {message}" if key else message)
+        self.source = source
+        text = f"{key}: {message}" if key else message
+        super().__init__(f"{source}: {text}" if source and source != key else text)
+
+    def at(self, source: object) -> "InputError":
+        """The same error, said of a file: ``examples/m.toml: machine.rated_current: ...``."""
+        return InputError(self.key, self.detail, str(source))
 
 
 def one_line(text: object, limit: int = 60) -> str:

@@ -182,6 +182,9 @@ def case_from_dict(data: Any) -> tuple[MachineCase, list[str]]:
     fmt = data.get("format")
     if fmt != FORMAT:
         raise InputError("format", f"expected \"{FORMAT}\", got {one_line(fmt) if fmt is not None else 'nothing'}")
+    for name in SECTIONS:
+        if name in data and not isinstance(data[name], dict):
+            raise InputError(name, f"expected a table ([{name}]), got {one_line(data[name])}")
     for name in ("sheet", "machine", "supply", "grounding", "instruments"):
         if name not in data:
             raise InputError(name, f"required table [{name}] is missing")
@@ -261,7 +264,10 @@ def parse_toml(text: str, name: str = "") -> dict:
 def load_case(path: str | Path) -> tuple[MachineCase, list[str]]:
     """Read and validate a machine file. Raises InputError; returns the case and its warnings."""
     data = parse_toml(read_text(path), str(path))
-    return case_from_dict(data)
+    try:
+        return case_from_dict(data)
+    except InputError as e:
+        raise e.at(path) from None
 
 
 # ---------------------------------------------------------------------------------------------------- writing

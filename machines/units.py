@@ -117,6 +117,19 @@ def _parse_units(unit_text: str, as_delta: bool):
     return registry().parse_units(unit_text, as_delta=as_delta)
 
 
+def _case_hint(unit_text: str, kind: Kind) -> str:
+    """' (units are case-sensitive: did you mean 'kA'?)' when another spelling has the expected kind."""
+    for cand in (unit_text.upper(), unit_text.lower(), unit_text[:1].lower() + unit_text[1:].upper()):
+        if cand == unit_text or not _UNIT.fullmatch(cand):
+            continue
+        try:
+            if _parse_units(cand, False).dimensionality == _dimensionality(kind.reference):
+                return f" (units are case-sensitive: did you mean '{cand}'?)"
+        except Exception:
+            continue
+    return ""
+
+
 def parse_quantity(
     text: str | int | float,
     expected_dimension: str | Kind,
@@ -202,14 +215,14 @@ def parse_quantity(
     try:
         units = _parse_units(unit_text, kind.name == "temperature_rise")
     except Exception:  # pint raises several types; any of them means the unit is not known
-        raise _fail(key, shown, f"unknown unit '{unit_text[:30]}' (units are case-sensitive: 'A', 'kV', 'MVA', 'mA')",
-                    kind) from None
+        hint = _case_hint(unit_text, kind) or " (units are case-sensitive: 'A', 'kV', 'MVA', 'mA')"
+        raise _fail(key, shown, f"unknown unit '{unit_text[:30]}'{hint}", kind) from None
 
     ureg = registry()
     dim = units.dimensionality
     if dim != _dimensionality(kind.reference):
         what = next((noun for ref, noun in _NOUNS if _dimensionality(ref) == dim), "a quantity of another kind")
-        raise _fail(key, shown, f"{one_line(shown)} is {what}", kind)
+        raise _fail(key, shown, f"{one_line(shown)} is {what}{_case_hint(unit_text, kind)}", kind)
     unit_names = str(units)
     if kind.name == "apparent_power" and "volt_ampere" not in unit_names:
         raise _fail(key, shown, "an apparent power is written in VA, kVA or MVA", kind)

@@ -1,0 +1,235 @@
+"""What changed between two revisions of a machine: inputs, settings and derived values, old → new.
+
+Inputs are compared on their validated values (the canonical inputs that the fingerprint is made of, see
+:func:`machines.record.canonical_inputs`), so ``"6.6 kV"`` against ``"6600 V"`` is no change; a change is shown as
+the values were entered in the two files. Settings and derived values are compared as the settings record writes
+them (six significant figures), so float noise below that is no change either.
+
+Sheet bookkeeping the tool manages itself (``sheet.revision``, ``sheet.date``, ``sheet.history``) is left out: a
+revision always changes them. The other sheet fields (tag, description, names, status, page size) are compared.
+
+This module returns data only; ``reports.changes`` prints it.
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass, field
+from typing import Any
+
+from machines.files import section_specs
+from machines.model import MachineCase
+from machines.record import Setting, SettingsRecord, canonical_inputs
+from machines.units import KINDS
+
+ABSENT = "not given"  #: shown for an input that one of the files does not give
+SECTION_ORDER = ("sheet", "study", "machine", "load", "supply", "grounding", "instruments")
+_SHEET_SKIPPED = {"revision", "date", "history"}  # managed by the tool: every revision changes them
+_STAGE_UNITS = {"frequency": "Hz", "time_delay": "s", "low": "Hz", "high": "Hz", "allowed": "s"}
+
+
+@dataclass
+class Change:
+    """One changed item: its key path and the old and new values as display strings."""
+
+    key: str
+    old: str
+    new: str
+
+
+@dataclass
+class Changes:
+    """Everything that changed between two revisions, by kind."""
+
+    inputs: list[Change] = field(default_factory=list)
+    settings: list[Change] = field(default_factory=list)
+    derived: list[Change] = field(default_factory=list)
+
+    @property
+    def empty(self) -> bool:
+        return not (self.inputs or self.settings or self.derived)
+
+    def __iter__(self):
+        """All changes: inputs, then settings, then derived values."""
+        yield from self.inputs
+        yield from self.settings
+        yield from self.derived
+
+
+def compare(old_case: MachineCase, old_record: SettingsRecord, new_case: MachineCase,
+            new_record: SettingsRecord) -> Changes:
+    """The inputs, settings and derived values that differ between two studied machine files."""
+    return Changes(
+        inputs=input_changes(old_case, new_case, old_record, new_record),
+        settings=setting_changes(old_record, new_record),
+        derived=_setting_dict_changes("derived.", old_record.derived, new_record.derived),
+    )
+
+
+# ---------------------------------------------------------------------------------------------------- inputs
+
+
+def input_changes(old_case: MachineCase, new_case: MachineCase, old_record: SettingsRecord | None = None,
+                  new_record: SettingsRecord | None = None) -> list[Change]:
+    """Inputs whose validated values differ, shown as entered (sections in file order, keys in model order).
+
+    An override whose text differs but whose value in both records is the same (``"180 A"`` against
+    ``"0.18 kA"``) is no change; the records are needed for that, without them override texts are compared.
+    """
+    old_v, new_v = _validated(old_case), _validated(new_case)
+    changes = []
+    for key in _union(old_v, new_v):
+        if old_v.get(key) != new_v.get(key):
+            old, new = _entered(old_case, key), _entered(new_case, key)
+            if old == new:  # written alike, read differently: e.g. "6.2 pu" of a changed rated current
+                unit = _si_unit(new_case, key)
+                old += f" (= {show_value(old_v.get(key), unit)})"
+                new += f" (= {show_value(new_v.get(key), unit)})"
+            changes.append(Change(key, old, new))
+    old_o, new_o = dict(old_case.overrides), dict(new_case.overrides)
+    for name in _union(old_o, new_o):
+        if " ".join(old_o.get(name, "").split()) == " ".join(new_o.get(name, "").split()):
+            continue
+        if name in old_o and name in new_o and _same_override(name, old_record, new_record):
+            continue
+        changes.append(Change(f"overrides.{name}", old_o.get(name, ABSENT), new_o.get(name, ABSENT)))
+    return changes
+
+
+def _validated(case: MachineCase) -> dict[str, Any]:
+    """Flat ``{"section.key": validated value}`` of one case (tables and ratios kept whole)."""
+    data = canonical_inputs(case)
+    out: dict[str, Any] = {}
+    sheet = case.sheet
+    for name in section_specs(case.machine.kind)["sheet"]:
+        if name not in _SHEET_SKIPPED:
+            out[f"sheet.{name}"] = getattr(sheet, name)
+    for section in SECTION_ORDER[1:]:
+        values = data.get(section) or {}
+        for name, value in values.items():
+            out[f"{section}.{name}"] = value
+    return out
+
+
+def _entered(case: MachineCase, key: str) -> str:
+    """The value of ``key`` as written in the case's file; the default or 'not given' when it was not written."""
+    section, _, name = key.partition(".")
+    table = case.entered.get(section)
+    if isinstance(table, dict) and name in table:
+        return _as_written(table[name])
+    specs = section_specs(case.machine.kind).get(section, {})
+    spec = specs.get(name)
+    if spec is not None and spec.default is not None:
+        return f"{spec.default} (default)"
+    chosen = getattr(getattr(case, section, None), name, None)
+    if spec is not None and spec.kind == "choice" and isinstance(chosen, str) and chosen:
+        return f"{chosen} (default)"  # e.g. study.practice, chosen by frequency
+    return ABSENT
+
+
+def _si_unit(case: MachineCase, key: str) -> str:
+    """The SI unit the validated value of ``key`` is held in ('' when it is not a quantity)."""
+    section, _, name = key.partition(".")
+    spec = section_specs(case.machine.kind).get(section, {}).get(name)
+    if spec is None:
+        return ""
+    if spec.kind == "current_or_pu":
+        return "A"
+    return KINDS[spec.kind].si_unit if spec.kind in KINDS else ""
+
+
+def _as_written(raw: Any) -> str:
+    if isinstance(raw, bool):
+        return "true" if raw else "false"
+    if isinstance(raw, list):  # a table such as machine.frequency_limits
+        rows = ["; ".join(f"{k} {_as_written(v)}" for k, v in row.items()) if isinstance(row, dict)
+                else _as_written(row) for row in raw]
+        return " | ".join(rows) if rows else "none"
+    return str(raw)
+
+
+def _same_override(name: str, old_record: SettingsRecord | None, new_record: SettingsRecord | None) -> bool:
+    """True when an override written differently gives the same value in both records."""
+    if old_record is None or new_record is None:
+        return False
+    fid, _, key = name.partition(".")
+    old_f, new_f = old_record.function(fid), new_record.function(fid)
+    if old_f is None or new_f is None or key not in old_f.settings or key not in new_f.settings:
+        return False
+    return old_f.settings[key].to_json()["value"] == new_f.settings[key].to_json()["value"]
+
+
+# ---------------------------------------------------------------------------------------------------- settings
+
+
+def setting_changes(old_record: SettingsRecord, new_record: SettingsRecord) -> list[Change]:
+    """Functions added, removed, taken in or out of service, and settings whose recorded values differ."""
+    old_f = {f.id: f for f in old_record.functions}
+    new_f = {f.id: f for f in new_record.functions}
+    changes = []
+    for fid in _union(old_f, new_f):
+        before, after = old_f.get(fid), new_f.get(fid)
+        if before is None:
+            changes.append(Change(fid, "not in the study", f"added: {after.title}"))
+            continue
+        if after is None:
+            changes.append(Change(fid, before.title, "removed from the study"))
+            continue
+        if before.enabled != after.enabled:
+            changes.append(Change(fid, _in_service(before.enabled), _in_service(after.enabled)))
+        changes += _setting_dict_changes(f"{fid}.", before.settings, after.settings)
+    return changes
+
+
+def _in_service(enabled: bool) -> str:
+    return "in service" if enabled else "out of service"
+
+
+def _setting_dict_changes(prefix: str, old: dict[str, Setting], new: dict[str, Setting]) -> list[Change]:
+    changes = []
+    for name in _union(old, new):
+        a, b = old.get(name), new.get(name)
+        if a is None or b is None:
+            changes.append(Change(prefix + name, "—" if a is None else _show_setting(a),
+                                  "—" if b is None else _show_setting(b)))
+            continue
+        ja, jb = a.to_json(), b.to_json()
+        ja.pop("label", None), jb.pop("label", None), ja.pop("note", None), jb.pop("note", None)
+        if ja == jb:
+            continue
+        secondary = ja.get("secondary") != jb.get("secondary") and ja.get("value") == jb.get("value")
+        source = ja["source"] != jb["source"]
+        changes.append(Change(prefix + name, _show_setting(a, secondary, source), _show_setting(b, secondary, source)))
+    return changes
+
+
+def _show_setting(s: Setting, secondary: bool = False, source: bool = False) -> str:
+    """A setting as a short display string: primary value and unit, the relay-side value and source if asked."""
+    text = show_value(s.value, s.unit)
+    if secondary and s.secondary is not None:
+        text += f" ({show_value(s.secondary, s.secondary_unit)} secondary)"
+    if source:
+        text += f" [{s.source}]"
+    return text
+
+
+def show_value(value: Any, unit: str = "") -> str:
+    """A record value as a display string: numbers to 4 significant figures with the record's (SI) unit.
+
+    >>> show_value(105.63, "A"), show_value(True), show_value([{"frequency": 57.5, "time_delay": 10.0}])
+    ('105.6 A', 'yes', '57.5 Hz / 10 s')
+    """
+    if isinstance(value, bool):
+        return "yes" if value else "no"
+    if value is None:
+        return "—"
+    if isinstance(value, (int, float)):
+        return f"{value:.4g} {unit}".strip()
+    if isinstance(value, (list, tuple)):
+        return "; ".join(" / ".join(show_value(v, _STAGE_UNITS.get(k, "")) for k, v in item.items())
+                         if isinstance(item, dict) else show_value(item) for item in value) or "none"
+    return str(value)
+
+
+def _union(a, b) -> list:
+    """Keys of ``a`` in order, then those only in ``b``."""
+    return list(a) + [k for k in b if k not in a]
