@@ -51,18 +51,20 @@ def test_changed_rating_is_shown_as_entered(base):
     assert "machine.rated_current: 186 A → 190 A" in format_changes(changes)
 
 
-@pytest.mark.parametrize("section, key, other", [
+@pytest.mark.parametrize("section, key, one, other", [
     # SI Brochure, 9th ed., table 7: kilo = 10^3
-    ("machine", "rated_voltage", "4160 V"),
+    ("machine", "rated_voltage", "4.16 kV", "4160 V"),
     # SI Brochure, 9th ed., table 7: mega = 10^6, kilo = 10^3
-    ("supply", "fault_level", "250000 kVA"),
-    # NIST SP 811, B.8: 1 hp = 745.7 W, so 1500 hp = 1118.55 kW (to the 10 significant figures compared)
-    ("machine", "rated_output", "1118.549772 kW"),
+    ("supply", "fault_level", "250 MVA", "250000 kVA"),
+    ("machine", "rated_output", "1120 kW", "1.12 MW"),
     # percent is 1/100 (SI Brochure, 9th ed., 5.4.7): 95.8 % = 0.958
-    ("machine", "efficiency", 0.958),
+    ("machine", "efficiency", "95.8 %", 0.958),
+    # NIST SP 811, B.8: 1 lb = 0.45359237 kg and 1 ft = 0.3048 m exactly, so 1600 lb·ft² = 67.42417615 kg·m²
+    ("load", "inertia", "1600 lb*ft^2", "67.42417615 kg*m^2"),
 ])
-def test_same_value_in_other_units_is_no_change(base, section, key, other):
-    changes = compare(*studied(base), *studied(edited(base, **{section: {key: other}})))
+def test_same_value_in_other_units_is_no_change(base, section, key, one, other):
+    old = edited(base, **{section: {key: one}})
+    changes = compare(*studied(old), *studied(edited(old, **{section: {key: other}})))
     assert [c.key for c in changes.inputs] == []
 
 
