@@ -176,12 +176,13 @@ def case_from_dict(data: Any) -> tuple[MachineCase, list[str]]:
     """Validate a machine file's plain data. Returns the case and the warnings; raises InputError."""
     if not isinstance(data, dict):
         raise InputError("", "a machine file must be a TOML table")
+    fmt = data.get("format")
+    if fmt != FORMAT:
+        raise InputError("format", f"expected \"{FORMAT}\" (a relaywright machine file), got "
+                                   f"{one_line(fmt) if fmt is not None else 'nothing'}")
     for name in data:
         if name not in TOP_KEYS:
             raise unknown_key(name, name, TOP_KEYS)
-    fmt = data.get("format")
-    if fmt != FORMAT:
-        raise InputError("format", f"expected \"{FORMAT}\", got {one_line(fmt) if fmt is not None else 'nothing'}")
     for name in SECTIONS:
         if name in data and not isinstance(data[name], dict):
             raise InputError(name, f"expected a table ([{name}]), got {one_line(data[name])}")
