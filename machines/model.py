@@ -401,7 +401,7 @@ def validate_case(case: MachineCase) -> list[str]:
         warnings.append(f"supply.nominal_voltage ({s.nominal_voltage / 1e3:.4g} kV) differs from the machine's "
                         f"rated voltage ({m.rated_voltage / 1e3:.4g} kV) by more than 15 %: check the file")
     g = case.grounding
-    if g.method in ("low-resistance", "solid") and g.fault_current_limit is None and g.method == "low-resistance":
+    if g.method == "low-resistance" and g.fault_current_limit is None:
         warnings.append("grounding.fault_current_limit is missing: earth-fault sensitivity cannot be judged")
     return warnings
 
