@@ -40,9 +40,20 @@ class FieldSpec:
     item: type | None = None  #: dataclass of the rows of a table
 
 
-def spec(kind: str, unit: str = "", *, required: bool = False, default: Any = None, lo: float | None = None,
-         hi: float | None = None, choices: tuple[str, ...] = (), help: str = "", allow_zero: bool = False,
-         item: type | None = None, value_default: Any = None):
+def spec(
+    kind: str,
+    unit: str = "",
+    *,
+    required: bool = False,
+    default: Any = None,
+    lo: float | None = None,
+    hi: float | None = None,
+    choices: tuple[str, ...] = (),
+    help: str = "",
+    allow_zero: bool = False,
+    item: type | None = None,
+    value_default: Any = None,
+):
     """A dataclass field carrying its :class:`FieldSpec` (``value_default`` is the Python default)."""
     meta = {"spec": FieldSpec(kind, unit, required, default, lo, hi, choices, help, allow_zero, item)}
     if kind == "table":
@@ -78,10 +89,12 @@ class Ratio:
 class HistoryEntry:
     """One line of the revision history: who changed what, when and why."""
 
-    revision: int = spec("integer", required=True, lo=0, hi=9999, allow_zero=True, value_default=0)
+    revision: int = spec(
+        "integer", required=True, lo=0, hi=9999, allow_zero=True, value_default=0, help="revision this row describes"
+    )
     date: str = spec("text", help="ISO date, e.g. 2026-11-30", value_default="")
-    by: str = spec("text", value_default="")
-    reason: str = spec("text", value_default="")
+    by: str = spec("text", value_default="", help="who made the revision")
+    reason: str = spec("text", value_default="", help="why, in a few words")
 
 
 @dataclass(frozen=True)
@@ -89,41 +102,80 @@ class SheetInfo:
     """Identification and sign-off data printed on the sheet."""
 
     tag: str = spec("text", required=True, help="plant tag, e.g. CW-P-201", value_default="")
-    description: str = spec("text", value_default="")
-    site: str = spec("text", value_default="")
-    prepared_by: str = spec("text", value_default="")
-    checked_by: str = spec("text", value_default="")
-    approved_by: str = spec("text", value_default="")
-    revision: int = spec("integer", default=0, lo=0, hi=9999, allow_zero=True, value_default=0)
+    description: str = spec("text", value_default="", help="what the machine does, as the plant names it")
+    site: str = spec("text", value_default="", help="plant or site name")
+    prepared_by: str = spec("text", value_default="", help="engineer who prepared the settings")
+    checked_by: str = spec("text", value_default="", help="engineer who checked them")
+    approved_by: str = spec("text", value_default="", help="licensed engineer who approves them")
+    revision: int = spec(
+        "integer",
+        default=0,
+        lo=0,
+        hi=9999,
+        allow_zero=True,
+        value_default=0,
+        help="revision number, bumped by relaywright revise",
+    )
     date: str = spec("text", help="date of this revision, ISO form", value_default="")
-    status: str = spec("choice", default="draft", choices=("draft", "issued"), value_default="draft")
-    page_size: str = spec("choice", default="A4", choices=("A4", "letter"), value_default="A4")
-    history: tuple[HistoryEntry, ...] = spec("table", item=HistoryEntry)
+    status: str = spec(
+        "choice",
+        default="draft",
+        choices=("draft", "issued"),
+        value_default="draft",
+        help="draft until approved, then issued",
+    )
+    page_size: str = spec(
+        "choice", default="A4", choices=("A4", "letter"), value_default="A4", help="paper size of the sheet"
+    )
+    history: tuple[HistoryEntry, ...] = spec(
+        "table", item=HistoryEntry, help="revision history rows: revision, date, by, reason"
+    )
 
 
 @dataclass(frozen=True)
 class StudyOptions:
     """Choices that steer the study."""
 
-    practice: str = spec("choice", choices=("IEC", "IEEE"), help="curve family and capability tables; default IEC "
-                         "at 50 Hz, IEEE at 60 Hz", value_default="IEC")
+    practice: str = spec(
+        "choice",
+        choices=("IEC", "IEEE"),
+        help="curve family and capability tables; default IEC at 50 Hz, IEEE at 60 Hz",
+        value_default="IEC",
+    )
 
 
 @dataclass(frozen=True)
 class FrequencyBand:
     """A maker's off-frequency band: from ``low`` to ``high`` [Hz], ``allowed`` accumulated time [s]."""
 
-    low: float = spec("frequency", "Hz", required=True, lo=30.0, hi=70.0, value_default=0.0)
-    high: float = spec("frequency", "Hz", required=True, lo=30.0, hi=70.0, value_default=0.0)
-    allowed: float = spec("time", "s", required=True, lo=0.0, hi=1e8, allow_zero=True, value_default=0.0)
+    low: float = spec(
+        "frequency", "Hz", required=True, lo=30.0, hi=70.0, value_default=0.0, help="lower edge of the band"
+    )
+    high: float = spec(
+        "frequency", "Hz", required=True, lo=30.0, hi=70.0, value_default=0.0, help="upper edge of the band"
+    )
+    allowed: float = spec(
+        "time",
+        "s",
+        required=True,
+        lo=0.0,
+        hi=1e8,
+        allow_zero=True,
+        value_default=0.0,
+        help="accumulated time the maker allows in this band over the machine's life",
+    )
 
 
 @dataclass(frozen=True)
 class FrequencyStage:
     """A load-shedding or trip stage: ``frequency`` [Hz] for ``time_delay`` [s]."""
 
-    frequency: float = spec("frequency", "Hz", required=True, lo=30.0, hi=70.0, value_default=0.0)
-    time_delay: float = spec("time", "s", required=True, lo=0.0, hi=3600.0, allow_zero=True, value_default=0.0)
+    frequency: float = spec(
+        "frequency", "Hz", required=True, lo=30.0, hi=70.0, value_default=0.0, help="stage frequency"
+    )
+    time_delay: float = spec(
+        "time", "s", required=True, lo=0.0, hi=3600.0, allow_zero=True, value_default=0.0, help="stage delay"
+    )
 
 
 # ---------------------------------------------------------------------------------------------------- machines
@@ -134,35 +186,103 @@ class InductionMotor:
     """A three-phase induction motor's nameplate and maker's data [SI]."""
 
     kind: Literal["induction-motor"] = "induction-motor"
-    rated_output: float = spec("active_power", "kW", required=True, lo=1e3, hi=1e8,
-                               help="shaft output on the nameplate, kW or hp", value_default=0.0)
-    rated_voltage: float = spec("voltage", "kV", required=True, lo=100.0, hi=30e3, value_default=0.0)
-    rated_current: float = spec("current", "A", lo=0.1, hi=1e5, help="full-load current on the nameplate",
-                                value_default=0.0)
-    frequency: float = spec("frequency", "Hz", required=True, lo=45.0, hi=65.0, value_default=0.0)
-    rated_speed: float = spec("speed", "rpm", required=True, lo=10.0, hi=800.0, help="full-load speed",
-                              value_default=0.0)
-    power_factor: float = spec("per_unit", "", required=True, lo=0.3, hi=1.0, value_default=0.0)
-    efficiency: float = spec("per_unit", "", required=True, lo=0.5, hi=0.995, value_default=0.0)
-    service_factor: float = spec("per_unit", "", default="1.0", lo=1.0, hi=1.5, value_default=1.0)
-    locked_rotor_current: float | None = spec("current_or_pu", "pu", lo=0.1, hi=1e6,
-                                              help="starting current at full voltage, A or pu of rated current")
+    rated_output: float = spec(
+        "active_power",
+        "kW",
+        required=True,
+        lo=1e3,
+        hi=1e8,
+        help="shaft output on the nameplate, kW or hp",
+        value_default=0.0,
+    )
+    rated_voltage: float = spec(
+        "voltage", "kV", required=True, lo=100.0, hi=30e3, value_default=0.0, help="nameplate line-to-line voltage"
+    )
+    rated_current: float = spec(
+        "current", "A", lo=0.1, hi=1e5, help="full-load current on the nameplate", value_default=0.0
+    )
+    frequency: float = spec(
+        "frequency", "Hz", required=True, lo=45.0, hi=65.0, value_default=0.0, help="rated frequency"
+    )
+    rated_speed: float = spec(
+        "speed", "rpm", required=True, lo=10.0, hi=800.0, help="full-load speed", value_default=0.0
+    )
+    power_factor: float = spec(
+        "per_unit", "", required=True, lo=0.3, hi=1.0, value_default=0.0, help="full-load power factor"
+    )
+    efficiency: float = spec(
+        "per_unit", "", required=True, lo=0.5, hi=0.995, value_default=0.0, help="full-load efficiency"
+    )
+    service_factor: float = spec(
+        "per_unit",
+        "",
+        default="1.0",
+        lo=1.0,
+        hi=1.5,
+        value_default=1.0,
+        help="nameplate service factor (1.0 or 1.15)",
+    )
+    locked_rotor_current: float | None = spec(
+        "current_or_pu", "pu", lo=0.1, hi=1e6, help="starting current at full voltage, A or pu of rated current"
+    )
     locked_rotor_code: str | None = spec("letter", help="NEMA MG 1 code letter, when no current is given")
-    locked_rotor_torque: float = spec("per_unit", "pu", required=True, lo=0.2, hi=4.0,
-                                      help="pu of rated torque", value_default=0.0)
-    breakdown_torque: float = spec("per_unit", "pu", required=True, lo=1.0, hi=5.0, value_default=0.0)
-    safe_stall_time_cold: float = spec("time", "s", required=True, lo=0.5, hi=600.0, value_default=0.0)
-    safe_stall_time_hot: float = spec("time", "s", required=True, lo=0.5, hi=600.0, value_default=0.0)
-    rotor_inertia: float = spec("inertia", "kg*m^2", required=True, lo=1e-3, hi=1e6, value_default=0.0)
-    starts_cold: int = spec("integer", default=2, lo=1, hi=10, value_default=2)
-    starts_hot: int = spec("integer", default=1, lo=1, hi=10, value_default=1)
-    heating_time_constant: float | None = spec("time", "min", lo=60.0, hi=36000.0,
-                                               help="maker's running heating time constant, if known")
-    cooling_time_constant: float | None = spec("time", "min", lo=60.0, hi=72000.0,
-                                               help="maker's standstill cooling time constant, if known")
-    insulation_class: str = spec("choice", default="F", choices=("A", "B", "F", "H"), value_default="F")
-    temperature_rise: float | None = spec("temperature_rise", "K", lo=20.0, hi=180.0,
-                                          help="rated temperature rise by resistance")
+    locked_rotor_torque: float = spec(
+        "per_unit", "pu", required=True, lo=0.2, hi=4.0, help="pu of rated torque", value_default=0.0
+    )
+    breakdown_torque: float = spec(
+        "per_unit",
+        "pu",
+        required=True,
+        lo=1.0,
+        hi=5.0,
+        value_default=0.0,
+        help="maximum (pull-out) torque, pu of rated torque",
+    )
+    safe_stall_time_cold: float = spec(
+        "time",
+        "s",
+        required=True,
+        lo=0.5,
+        hi=600.0,
+        value_default=0.0,
+        help="maker's safe locked-rotor time from ambient temperature",
+    )
+    safe_stall_time_hot: float = spec(
+        "time",
+        "s",
+        required=True,
+        lo=0.5,
+        hi=600.0,
+        value_default=0.0,
+        help="maker's safe locked-rotor time from rated-load temperature",
+    )
+    rotor_inertia: float = spec(
+        "inertia",
+        "kg*m^2",
+        required=True,
+        lo=1e-3,
+        hi=1e6,
+        value_default=0.0,
+        help="rotor moment of inertia J (or WK² in lb*ft^2)",
+    )
+    starts_cold: int = spec(
+        "integer", default=2, lo=1, hi=10, value_default=2, help="starts in succession allowed from ambient"
+    )
+    starts_hot: int = spec(
+        "integer", default=1, lo=1, hi=10, value_default=1, help="starts allowed from rated-load temperature"
+    )
+    heating_time_constant: float | None = spec(
+        "time", "min", lo=60.0, hi=36000.0, help="maker's running heating time constant, if known"
+    )
+    cooling_time_constant: float | None = spec(
+        "time", "min", lo=60.0, hi=72000.0, help="maker's standstill cooling time constant, if known"
+    )
+    insulation_class: str = spec(
+        "choice", default="F", choices=("A", "B", "F", "H"), value_default="F", help="insulation thermal class"
+    )
+    temperature_rise: float | None = spec(
+        "temperature_rise", "K", lo=20.0, hi=180.0, help="rated temperature rise by resistance"
+    )
 
 
 @dataclass(frozen=True)
@@ -170,33 +290,89 @@ class SynchronousGenerator:
     """A synchronous generator's nameplate and maker's data [SI; reactances pu on the machine's base]."""
 
     kind: Literal["synchronous-generator"] = "synchronous-generator"
-    rated_apparent_power: float = spec("apparent_power", "MVA", required=True, lo=1e4, hi=2e9, value_default=0.0)
-    rated_voltage: float = spec("voltage", "kV", required=True, lo=100.0, hi=30e3, value_default=0.0)
-    power_factor: float = spec("per_unit", "", required=True, lo=0.5, hi=1.0, value_default=0.0)
-    frequency: float = spec("frequency", "Hz", required=True, lo=45.0, hi=65.0, value_default=0.0)
-    rated_speed: float = spec("speed", "rpm", required=True, lo=5.0, hi=800.0, value_default=0.0)
-    prime_mover: str = spec("choice", required=True,
-                            choices=("steam-turbine", "gas-turbine", "hydro", "reciprocating-engine"),
-                            value_default="")
-    rotor: str = spec("choice", required=True,
-                      choices=("cylindrical-indirect", "cylindrical-direct", "salient-with-damper",
-                               "salient-without-damper"), value_default="")
-    xd: float = spec("per_unit", "pu", required=True, lo=0.3, hi=4.0, value_default=0.0)
-    xd_transient: float = spec("per_unit", "pu", required=True, lo=0.05, hi=1.0, value_default=0.0)
-    xd_subtransient: float = spec("per_unit", "pu", required=True, lo=0.03, hi=0.8, value_default=0.0)
+    rated_apparent_power: float = spec(
+        "apparent_power", "MVA", required=True, lo=1e4, hi=2e9, value_default=0.0, help="nameplate rating"
+    )
+    rated_voltage: float = spec(
+        "voltage", "kV", required=True, lo=100.0, hi=30e3, value_default=0.0, help="nameplate line-to-line voltage"
+    )
+    power_factor: float = spec(
+        "per_unit", "", required=True, lo=0.5, hi=1.0, value_default=0.0, help="rated power factor"
+    )
+    frequency: float = spec(
+        "frequency", "Hz", required=True, lo=45.0, hi=65.0, value_default=0.0, help="rated frequency"
+    )
+    rated_speed: float = spec(
+        "speed", "rpm", required=True, lo=5.0, hi=800.0, value_default=0.0, help="synchronous speed"
+    )
+    prime_mover: str = spec(
+        "choice",
+        required=True,
+        choices=("steam-turbine", "gas-turbine", "hydro", "reciprocating-engine"),
+        value_default="",
+        help="what drives the generator",
+    )
+    rotor: str = spec(
+        "choice",
+        required=True,
+        choices=("cylindrical-indirect", "cylindrical-direct", "salient-with-damper", "salient-without-damper"),
+        value_default="",
+        help="rotor construction and cooling",
+    )
+    xd: float = spec(
+        "per_unit",
+        "pu",
+        required=True,
+        lo=0.3,
+        hi=4.0,
+        value_default=0.0,
+        help="direct-axis synchronous reactance, unsaturated",
+    )
+    xd_transient: float = spec(
+        "per_unit",
+        "pu",
+        required=True,
+        lo=0.05,
+        hi=1.0,
+        value_default=0.0,
+        help="direct-axis transient reactance X'd",
+    )
+    xd_subtransient: float = spec(
+        "per_unit",
+        "pu",
+        required=True,
+        lo=0.03,
+        hi=0.8,
+        value_default=0.0,
+        help="direct-axis subtransient reactance X''d",
+    )
     x2: float | None = spec("per_unit", "pu", lo=0.03, hi=1.0, help="negative-sequence reactance")
-    negative_sequence_continuous: float | None = spec("per_unit", "pu", lo=0.01, hi=0.3,
-                                                      help="maker's continuous I2 capability")
+    negative_sequence_continuous: float | None = spec(
+        "per_unit", "pu", lo=0.01, hi=0.3, help="maker's continuous I2 capability"
+    )
     negative_sequence_k: float | None = spec("time", "s", lo=1.0, hi=200.0, help="maker's I2²t capability")
-    stator_capacitance: float | None = spec("capacitance", "uF", lo=1e-9, hi=1e-4,
-                                            help="per phase to ground, stator winding")
-    third_harmonic_neutral_min: float | None = spec("voltage", "V", lo=0.01, hi=1e4,
-                                                    help="lowest measured third-harmonic neutral voltage, "
-                                                         "primary")
-    motoring_power: float | None = spec("active_power", "kW", lo=1.0, hi=1e9)
+    stator_capacitance: float | None = spec(
+        "capacitance", "uF", lo=1e-9, hi=1e-4, help="per phase to ground, stator winding"
+    )
+    third_harmonic_neutral_min: float | None = spec(
+        "voltage", "V", lo=0.01, hi=1e4, help="lowest measured third-harmonic neutral voltage, primary"
+    )
+    motoring_power: float | None = spec(
+        "active_power", "kW", lo=1.0, hi=1e9, help="power to motor the unit at rated speed (else by prime mover)"
+    )
     inertia_constant: float | None = spec("time", "s", lo=0.1, hi=30.0, help="H on the machine's rating")
-    vhz_limit: float = spec("per_unit", "pu", default="1.05", lo=1.0, hi=1.3, value_default=1.05)
-    frequency_limits: tuple[FrequencyBand, ...] = spec("table", item=FrequencyBand)
+    vhz_limit: float = spec(
+        "per_unit",
+        "pu",
+        default="1.05",
+        lo=1.0,
+        hi=1.3,
+        value_default=1.05,
+        help="continuous V/Hz capability on the generator's base",
+    )
+    frequency_limits: tuple[FrequencyBand, ...] = spec(
+        "table", item=FrequencyBand, help="maker's off-frequency bands: low, high, allowed time"
+    )
 
 
 # ---------------------------------------------------------------------------------------------------- system
@@ -206,56 +382,133 @@ class SynchronousGenerator:
 class MotorLoad:
     """The driven load of a motor."""
 
-    inertia: float = spec("inertia", "kg*m^2", required=True, lo=0.0, hi=1e7, allow_zero=True,
-                          help="load inertia referred to the motor shaft (J, or WK² in lb*ft^2)",
-                          value_default=0.0)
-    torque_profile: str = spec("choice", default="quadratic", choices=("quadratic", "constant", "linear"),
-                               value_default="quadratic")
-    torque_at_rated_speed: float = spec("per_unit", "pu", default="1.0", lo=0.0, hi=1.5, allow_zero=True,
-                                        value_default=1.0)
-    breakaway_torque: float = spec("per_unit", "pu", default="0.1", lo=0.0, hi=2.0, allow_zero=True,
-                                   value_default=0.1)
-    minimum_load: float | None = spec("per_unit", "pu", lo=0.0, hi=1.0, allow_zero=True,
-                                      help="lowest normal running current, pu of rated")
+    inertia: float = spec(
+        "inertia",
+        "kg*m^2",
+        required=True,
+        lo=0.0,
+        hi=1e7,
+        allow_zero=True,
+        help="load inertia referred to the motor shaft (J, or WK² in lb*ft^2)",
+        value_default=0.0,
+    )
+    torque_profile: str = spec(
+        "choice",
+        default="quadratic",
+        choices=("quadratic", "constant", "linear"),
+        value_default="quadratic",
+        help="how load torque rises with speed",
+    )
+    torque_at_rated_speed: float = spec(
+        "per_unit",
+        "pu",
+        default="1.0",
+        lo=0.0,
+        hi=1.5,
+        allow_zero=True,
+        value_default=1.0,
+        help="load torque at rated speed, pu of motor rated torque",
+    )
+    breakaway_torque: float = spec(
+        "per_unit",
+        "pu",
+        default="0.1",
+        lo=0.0,
+        hi=2.0,
+        allow_zero=True,
+        value_default=0.1,
+        help="load torque at standstill, pu of motor rated torque",
+    )
+    minimum_load: float | None = spec(
+        "per_unit", "pu", lo=0.0, hi=1.0, allow_zero=True, help="lowest normal running current, pu of rated"
+    )
 
 
 @dataclass(frozen=True)
 class Supply:
     """The supply to the machine and its switching device."""
 
-    nominal_voltage: float = spec("voltage", "kV", required=True, lo=100.0, hi=800e3, value_default=0.0)
-    fault_level: float | None = spec("apparent_power", "MVA", lo=1e5, hi=1e11,
-                                     help="three-phase fault level at the machine's bus, maximum")
-    minimum_fault_level: float | None = spec("apparent_power", "MVA", lo=1e5, hi=1e11)
-    source_impedance: float | None = spec("impedance", "ohm", lo=1e-5, hi=1e4)
-    x_over_r: float = spec("per_unit", "", default="15", lo=1.0, hi=100.0, value_default=15.0)
-    minimum_starting_voltage: float | None = spec("per_unit", "pu", lo=0.5, hi=1.1)
-    starter: str = spec("choice", default="breaker", choices=("breaker", "fused-contactor"),
-                        value_default="breaker")
-    contactor_breaking_current: float | None = spec("current", "kA", lo=10.0, hi=2e5)
-    fuse_rating: float | None = spec("current", "A", lo=1.0, hi=1e5)
-    underfrequency_stages: tuple[FrequencyStage, ...] = spec("table", item=FrequencyStage)
-    load_shedding_stages: tuple[FrequencyStage, ...] = spec("table", item=FrequencyStage)
-    system_rating: float | None = spec("apparent_power", "MVA", lo=1e4, hi=1e12,
-                                       help="rating of the islanded system, for the swing equation")
+    nominal_voltage: float = spec(
+        "voltage",
+        "kV",
+        required=True,
+        lo=100.0,
+        hi=800e3,
+        value_default=0.0,
+        help="nominal voltage of the bus the machine is on",
+    )
+    fault_level: float | None = spec(
+        "apparent_power", "MVA", lo=1e5, hi=1e11, help="three-phase fault level at the machine's bus, maximum"
+    )
+    minimum_fault_level: float | None = spec(
+        "apparent_power", "MVA", lo=1e5, hi=1e11, help="three-phase fault level at the bus, minimum source"
+    )
+    source_impedance: float | None = spec(
+        "impedance", "ohm", lo=1e-5, hi=1e4, help="source impedance per phase, instead of the fault level"
+    )
+    x_over_r: float = spec(
+        "per_unit", "", default="15", lo=1.0, hi=100.0, value_default=15.0, help="X/R ratio of the source at the bus"
+    )
+    minimum_starting_voltage: float | None = spec(
+        "per_unit", "pu", lo=0.5, hi=1.1, help="lowest motor terminal voltage during a start (else computed)"
+    )
+    starter: str = spec(
+        "choice",
+        default="breaker",
+        choices=("breaker", "fused-contactor"),
+        value_default="breaker",
+        help="switching device: breaker, or fused contactor",
+    )
+    contactor_breaking_current: float | None = spec(
+        "current", "kA", lo=10.0, hi=2e5, help="contactor's rated breaking current"
+    )
+    fuse_rating: float | None = spec(
+        "current", "A", lo=1.0, hi=1e5, help="rated current of the contactor's power fuse"
+    )
+    underfrequency_stages: tuple[FrequencyStage, ...] = spec(
+        "table", item=FrequencyStage, help="this motor's load-shedding stages: frequency, time_delay"
+    )
+    load_shedding_stages: tuple[FrequencyStage, ...] = spec(
+        "table", item=FrequencyStage, help="the system's load-shedding stages (generators coordinate below them)"
+    )
+    system_rating: float | None = spec(
+        "apparent_power", "MVA", lo=1e4, hi=1e12, help="rating of the islanded system, for the swing equation"
+    )
     system_inertia: float | None = spec("time", "s", lo=0.1, hi=30.0, help="H of the islanded system")
-    transformer_lv_voltage: float | None = spec("voltage", "kV", lo=100.0, hi=30e3,
-                                                help="step-up transformer's LV rated voltage")
-    transformer_vhz_limit: float = spec("per_unit", "pu", default="1.05", lo=1.0, hi=1.3, value_default=1.05)
+    transformer_lv_voltage: float | None = spec(
+        "voltage", "kV", lo=100.0, hi=30e3, help="step-up transformer's LV rated voltage"
+    )
+    transformer_vhz_limit: float = spec(
+        "per_unit",
+        "pu",
+        default="1.05",
+        lo=1.0,
+        hi=1.3,
+        value_default=1.05,
+        help="step-up transformer's continuous V/Hz capability on its LV base",
+    )
 
 
 @dataclass(frozen=True)
 class Grounding:
     """How the system neutral is grounded and what that means for earth faults."""
 
-    method: str = spec("choice", required=True,
-                       choices=("solid", "low-resistance", "high-resistance", "ungrounded",
-                                "distribution-transformer"), value_default="")
-    fault_current_limit: float | None = spec("current", "A", lo=0.1, hi=1e5)
-    system_capacitance: float | None = spec("capacitance", "uF", lo=1e-10, hi=1e-3,
-                                            help="per phase to ground, the rest of the connected system")
-    circuit_capacitance: float | None = spec("capacitance", "uF", lo=1e-10, hi=1e-3,
-                                             help="per phase to ground, this machine's own cable and winding")
+    method: str = spec(
+        "choice",
+        required=True,
+        choices=("solid", "low-resistance", "high-resistance", "ungrounded", "distribution-transformer"),
+        value_default="",
+        help="how the system neutral is grounded",
+    )
+    fault_current_limit: float | None = spec(
+        "current", "A", lo=0.1, hi=1e5, help="earth-fault current the grounding allows"
+    )
+    system_capacitance: float | None = spec(
+        "capacitance", "uF", lo=1e-10, hi=1e-3, help="per phase to ground, the rest of the connected system"
+    )
+    circuit_capacitance: float | None = spec(
+        "capacitance", "uF", lo=1e-10, hi=1e-3, help="per phase to ground, this machine's own cable and winding"
+    )
     transformer_ratio: Ratio | None = spec("ratio", "V", help="grounding transformer, e.g. '13800/240 V'")
     resistor: float | None = spec("impedance", "ohm", lo=1e-3, hi=1e6, help="grounding resistor as installed")
 
@@ -267,13 +520,16 @@ class Instruments:
     phase_ct: Ratio = spec("ratio", "A", required=True, help="e.g. '200/1 A'", value_default=Ratio(1.0, 1.0))
     ground_ct: Ratio | None = spec("ratio", "A", help="core-balance CT, e.g. '50/1 A'")
     vt: Ratio | None = spec("ratio", "V", help="e.g. '6600/110 V'")
-    neutral_vt: Ratio | None = spec("ratio", "V")
+    neutral_vt: Ratio | None = spec("ratio", "V", help="neutral voltage transformer, if not a grounding transformer")
     phase_ct_class: str | None = spec("text", help="IEEE C57.13 class, e.g. 'C200'")
-    phase_ct_burden: float | None = spec("impedance", "ohm", lo=1e-3, hi=100.0,
-                                         help="total secondary burden: leads and relay")
-    differential_ct: Ratio | None = spec("ratio", "A")
-    differential_ct_class: str | None = spec("text")
-    differential_ct_burden: float | None = spec("impedance", "ohm", lo=1e-3, hi=100.0)
+    phase_ct_burden: float | None = spec(
+        "impedance", "ohm", lo=1e-3, hi=100.0, help="total secondary burden: leads and relay"
+    )
+    differential_ct: Ratio | None = spec("ratio", "A", help="CTs of the differential zone, e.g. '1000/5 A'")
+    differential_ct_class: str | None = spec("text", help="IEEE C57.13 class of the differential CTs, e.g. 'C400'")
+    differential_ct_burden: float | None = spec(
+        "impedance", "ohm", lo=1e-3, hi=100.0, help="total secondary burden of the differential CTs"
+    )
 
 
 # ---------------------------------------------------------------------------------------------------- the case
@@ -312,8 +568,9 @@ class MachineCase:
 # ---------------------------------------------------------------------------------------------------- derived
 
 
-def rated_current_from_output(rated_output: float, rated_voltage: float, efficiency: float,
-                              power_factor: float) -> float:
+def rated_current_from_output(
+    rated_output: float, rated_voltage: float, efficiency: float, power_factor: float
+) -> float:
     """Full-load line current of a three-phase motor [A].
 
     Notes
@@ -392,14 +649,17 @@ def validate_case(case: MachineCase) -> list[str]:
     else:
         warnings += _validate_generator(m)
     if case.instruments.phase_ct.primary <= 0 or case.instruments.phase_ct.secondary <= 0:
-        raise InputError("instruments.phase_ct", "expected a CT ratio with positive primary and secondary such "
-                         "as '200/1 A'")
+        raise InputError(
+            "instruments.phase_ct", "expected a CT ratio with positive primary and secondary such as '200/1 A'"
+        )
     s = case.supply
     if s.minimum_fault_level and s.fault_level and s.minimum_fault_level > s.fault_level:
         raise InputError("supply.minimum_fault_level", "expected at most supply.fault_level, got a larger value")
     if abs(s.nominal_voltage - m.rated_voltage) > 0.15 * m.rated_voltage:
-        warnings.append(f"supply.nominal_voltage ({s.nominal_voltage / 1e3:.4g} kV) differs from the machine's "
-                        f"rated voltage ({m.rated_voltage / 1e3:.4g} kV) by more than 15 %: check the file")
+        warnings.append(
+            f"supply.nominal_voltage ({s.nominal_voltage / 1e3:.4g} kV) differs from the machine's "
+            f"rated voltage ({m.rated_voltage / 1e3:.4g} kV) by more than 15 %: check the file"
+        )
     g = case.grounding
     if g.method == "low-resistance" and g.fault_current_limit is None:
         warnings.append("grounding.fault_current_limit is missing: earth-fault sensitivity cannot be judged")
@@ -412,32 +672,49 @@ def _validate_motor(m: InductionMotor) -> list[str]:
     if m.rated_current:
         dev = m.rated_current / computed - 1.0
         if abs(dev) > 0.10:
-            warnings.append(f"machine.rated_current {m.rated_current:.4g} A differs by {dev:+.0%} from "
-                            f"{computed:.4g} A computed from output, voltage, efficiency and power factor")
+            warnings.append(
+                f"machine.rated_current {m.rated_current:.4g} A differs by {dev:+.0%} from "
+                f"{computed:.4g} A computed from output, voltage, efficiency and power factor"
+            )
     i_rated = m.rated_current or computed
     if m.locked_rotor_current is None and m.locked_rotor_code is None:
-        raise InputError("machine.locked_rotor_current", "expected a locked-rotor current (A or pu) or "
-                         "machine.locked_rotor_code (NEMA letter), got neither")
+        raise InputError(
+            "machine.locked_rotor_current",
+            "expected a locked-rotor current (A or pu) or machine.locked_rotor_code (NEMA letter), got neither",
+        )
     if m.locked_rotor_current is not None and m.locked_rotor_current < 2.0 * i_rated:
-        raise InputError("machine.locked_rotor_current", f"expected at least 2 pu of rated current, got "
-                         f"{m.locked_rotor_current / i_rated:.3g} pu ({m.locked_rotor_current:.4g} A)")
+        raise InputError(
+            "machine.locked_rotor_current",
+            f"expected at least 2 pu of rated current, got "
+            f"{m.locked_rotor_current / i_rated:.3g} pu ({m.locked_rotor_current:.4g} A)",
+        )
     if m.safe_stall_time_hot > m.safe_stall_time_cold:
-        raise InputError("machine.safe_stall_time_hot", f"expected at most the cold safe stall time "
-                         f"({m.safe_stall_time_cold:.4g} s), got {m.safe_stall_time_hot:.4g} s")
+        raise InputError(
+            "machine.safe_stall_time_hot",
+            f"expected at most the cold safe stall time "
+            f"({m.safe_stall_time_cold:.4g} s), got {m.safe_stall_time_hot:.4g} s",
+        )
     f = m.frequency
     ws_max = synchronous_speed(f, 2)
     if m.rated_speed >= ws_max:
-        raise InputError("machine.rated_speed", f"expected below the 2-pole synchronous speed "
-                         f"{120 * f:.0f} rpm at {f:g} Hz, got {m.rated_speed * 30 / math.pi:.0f} rpm")
+        raise InputError(
+            "machine.rated_speed",
+            f"expected below the 2-pole synchronous speed "
+            f"{120 * f:.0f} rpm at {f:g} Hz, got {m.rated_speed * 30 / math.pi:.0f} rpm",
+        )
     rpm = m.rated_speed * 30.0 / math.pi
     near = generator_poles(f, m.rated_speed)
     if rpm >= 120.0 * f / near:
-        raise InputError("machine.rated_speed", f"expected a full-load speed below synchronous speed "
-                         f"({120 * f / near:.0f} rpm for {near} poles at {f:g} Hz), got {rpm:.0f} rpm")
+        raise InputError(
+            "machine.rated_speed",
+            f"expected a full-load speed below synchronous speed "
+            f"({120 * f / near:.0f} rpm for {near} poles at {f:g} Hz), got {rpm:.0f} rpm",
+        )
     s = rated_slip(f, m.rated_speed)
     if not 0.0 < s < 0.1:
-        raise InputError("machine.rated_speed", f"expected a full-load slip between 0 and 10 %, got "
-                         f"{s:.1%} ({rpm:.0f} rpm)")
+        raise InputError(
+            "machine.rated_speed", f"expected a full-load slip between 0 and 10 %, got {s:.1%} ({rpm:.0f} rpm)"
+        )
     if m.breakdown_torque <= 1.0:
         raise InputError("machine.breakdown_torque", "expected more than 1 pu of rated torque")
     if m.starts_hot > m.starts_cold:
@@ -448,19 +725,25 @@ def _validate_motor(m: InductionMotor) -> list[str]:
 def _validate_generator(g: SynchronousGenerator) -> list[str]:
     warnings = []
     if not g.xd_subtransient <= g.xd_transient <= g.xd:
-        raise InputError("machine.xd_transient", f"expected xd'' ≤ xd' ≤ xd, got {g.xd_subtransient:g} / "
-                         f"{g.xd_transient:g} / {g.xd:g} pu")
+        raise InputError(
+            "machine.xd_transient",
+            f"expected xd'' ≤ xd' ≤ xd, got {g.xd_subtransient:g} / {g.xd_transient:g} / {g.xd:g} pu",
+        )
     poles = generator_poles(g.frequency, g.rated_speed)
     ws = synchronous_speed(g.frequency, poles)
     if abs(g.rated_speed / ws - 1.0) > 0.005:
-        raise InputError("machine.rated_speed", f"expected a synchronous speed 120·f/p at {g.frequency:g} Hz "
-                         f"(e.g. {ws * 30 / math.pi:.0f} rpm), got {g.rated_speed * 30 / math.pi:.1f} rpm")
+        raise InputError(
+            "machine.rated_speed",
+            f"expected a synchronous speed 120·f/p at {g.frequency:g} Hz "
+            f"(e.g. {ws * 30 / math.pi:.0f} rpm), got {g.rated_speed * 30 / math.pi:.1f} rpm",
+        )
     salient = g.rotor.startswith("salient")
     if salient and poles == 2:
         warnings.append("machine.rotor is salient but the speed gives a 2-pole machine: check the rotor type")
     bands = g.frequency_limits
     for i, b in enumerate(bands):
         if b.low >= b.high:
-            raise InputError(f"machine.frequency_limits[{i}].low", f"expected below high ({b.high:g} Hz), got "
-                             f"{b.low:g} Hz")
+            raise InputError(
+                f"machine.frequency_limits[{i}].low", f"expected below high ({b.high:g} Hz), got {b.low:g} Hz"
+            )
     return warnings
