@@ -85,9 +85,26 @@ def input_sections(record) -> list[tuple[str, list[tuple[str, str]]]]:
     for section, table in (record.inputs or {}).items():
         if not isinstance(table, dict) or not table:
             continue
-        rows = [(key if section == "overrides" else label_of(key), as_entered(value)) for key, value in table.items()]
+        rows = [(key if section == "overrides" else printed_label(key), as_entered(value))
+                for key, value in table.items()]
         out.append((SECTION_TITLE.get(section, label_of(section)), rows))
     return out
+
+
+_ACRONYMS = {"ct": "CT", "vt": "VT", "pu": "pu", "i2": "I2", "x2": "X2", "xd": "Xd", "xq": "Xq", "lr": "LR"}
+
+
+def printed_label(key: str, js: dict | None = None) -> str:
+    """The printed name of a key, with the trade's abbreviations spelled as the trade writes them.
+
+    >>> printed_label("phase_ct"), printed_label("xd_transient"), printed_label("vt")
+    ('Phase CT', 'Xd transient', 'VT')
+    """
+    text = label_of(key, js)
+    if js and js.get("label"):
+        return text
+    words = text.split(" ")
+    return " ".join(_ACRONYMS.get(w.lower(), w) for w in words)
 
 
 def as_entered(value: Any) -> str:
@@ -110,7 +127,7 @@ def derived_rows(record) -> list[tuple[str, str]]:
     rows = []
     for key, s in record.derived.items():
         js = s.to_json()
-        rows.append((label_of(key, js), _with_secondary(js)))
+        rows.append((printed_label(key, js), _with_secondary(js)))
     return rows
 
 
@@ -129,7 +146,7 @@ def settings_blocks(record) -> list[FunctionBlock]:
             rows.append(SettingRow(
                 fid=f.id if i == 0 else "",
                 function=(f.title + ("" if f.enabled else " (not enabled)")) if i == 0 else "",
-                setting=label_of(key, js),
+                setting=printed_label(key, js),
                 primary=setting_primary(js),
                 relay_side=setting_secondary(js),
                 source=SOURCE_WORD.get(s.source, str(s.source)),

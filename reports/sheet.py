@@ -1,0 +1,432 @@
+"""The printable settings sheet: a reportlab story built from a settings record.
+
+Order (what the engineer signs, what the contractor hands over, what maintenance files): identification, machine
+and system data as entered, derived values, the settings table with each function's basis, findings (fails first),
+the safety notice; then the drawings, the commissioning test table, the revision history, the sign-off block and
+the inputs fingerprint. Every page carries a footer with the tag, revision, status, inputs fingerprint and
+"page x of y". The tag, revision and fingerprint are also written to the PDF's /Keywords so that
+``relaywright verify`` can compare a sheet with a machine file.
+
+Layout only: the rows come from :mod:`reports.tables`, the drawings from :mod:`reports.plots`; every user string is
+escaped by :func:`reports.fonts.markup` before it reaches a Paragraph. Built with ``invariant=True``, so the same
+record gives the same bytes.
+"""
+
+from __future__ import annotations
+
+import io
+from functools import lru_cache, partial
+
+from machines.errors import InputError, one_line
+from machines.notices import SAFETY_NOTICE
+from reports import tables
+from reports.fonts import SANS, SANS_BOLD, SANS_ITALIC, markup, plain, register
+from reports.plots import ACCENT_HEX, render
+
+PAGE_SIZES = ("A4", "letter")
+KEYWORDS_PREFIX = "relaywright settings sheet"
+_MARGIN_X, _MARGIN_TOP, _MARGIN_BOTTOM = 40.0, 40.0, 50.0
+
+
+def page_size_of(name: str | None):
+    """reportlab page size for ``"A4"`` or ``"letter"`` (any letter case)."""
+    from reportlab.lib.pagesizes import A4, letter
+
+    key = (name or "A4").strip().lower()
+    if key == "a4":
+        return A4
+    if key == "letter":
+        return letter
+    raise InputError("page_size", f"expected A4 or letter, got {one_line(name)}")
+
+
+def keywords(record) -> str:
+    """The /Keywords entry: fixed prefix, inputs fingerprint, revision, and the tag last (it may hold anything)."""
+    return (f"{KEYWORDS_PREFIX}; inputs_fingerprint={record.inputs_fingerprint}; "
+            f"revision={record.sheet.get('revision', record.revision)}; tag={plain(record.tag)}")
+
+
+@lru_cache(maxsize=1)
+def _version() -> str:
+    from importlib.metadata import PackageNotFoundError, version
+
+    try:
+        return version("relaywright")
+    except PackageNotFoundError:
+        return ""
+
+
+# ---------------------------------------------------------------------------------------------------- styles
+
+
+class _Styles:
+    def __init__(self):
+        from reportlab.lib.colors import HexColor, black
+        from reportlab.lib.enums import TA_RIGHT
+        from reportlab.lib.styles import ParagraphStyle
+
+        self.accent = HexColor(ACCENT_HEX)
+        self.grey = HexColor("#555555")
+        base = ParagraphStyle("body", fontName=SANS, fontSize=8.5, leading=10.8, textColor=black)
+        self.body = base
+        self.cell = ParagraphStyle("cell", base, fontSize=7.8, leading=9.4)
+        self.cell_bold = ParagraphStyle("cellb", self.cell, fontName=SANS_BOLD)
+        self.cell_right = ParagraphStyle("cellr", self.cell, alignment=TA_RIGHT)
+        self.basis = ParagraphStyle("basis", self.cell, fontName=SANS_ITALIC, fontSize=7.3, leading=8.9,
+                                    textColor=HexColor("#222222"))
+        self.head = ParagraphStyle("head", self.cell, fontName=SANS_BOLD, textColor=self.accent)
+        self.small = ParagraphStyle("small", base, fontSize=7.2, leading=8.8, textColor=self.grey)
+        self.footer = ParagraphStyle("footer", base, fontSize=7.5, leading=9, textColor=self.grey)
+        self.label = ParagraphStyle("label", base, fontSize=6.3, leading=7.5, textColor=self.grey)
+        self.value = ParagraphStyle("value", base, fontSize=9.5, leading=11.5)
+        self.kicker = ParagraphStyle("kicker", base, fontName=SANS_BOLD, fontSize=9, leading=11,
+                                     textColor=self.accent)
+        self.tag = ParagraphStyle("tag", base, fontName=SANS_BOLD, fontSize=17, leading=20.5, spaceBefore=2)
+        self.description = ParagraphStyle("description", base, fontSize=10, leading=12.5, spaceAfter=6)
+        self.h1 = ParagraphStyle("h1", base, fontName=SANS_BOLD, fontSize=11, leading=13.5, textColor=self.accent,
+                                 spaceBefore=10, spaceAfter=3)
+        self.h2 = ParagraphStyle("h2", base, fontName=SANS_BOLD, fontSize=9, leading=11, spaceBefore=6,
+                                 spaceAfter=2, keepWithNext=1)
+        self.notice = ParagraphStyle("notice", base, fontSize=8.3, leading=10.6)
+        self.alarm = ParagraphStyle("alarm", base, fontName=SANS_BOLD, fontSize=9, leading=11.5, spaceAfter=4)
+
+
+def _p(text: object, style) -> object:
+    from reportlab.platypus import Paragraph
+
+    return Paragraph(markup(text), style)
+
+
+def _heading(text: str, st: _Styles) -> list:
+    from reportlab.platypus import CondPageBreak, HRFlowable, Paragraph
+
+    rule = HRFlowable(width="100%", thickness=0.8, color=st.accent, spaceBefore=0, spaceAfter=4)
+    return [CondPageBreak(90), Paragraph(markup(text), st.h1), rule]
+
+
+def _table(rows, widths, style_cmds, repeat: int = 0):
+    from reportlab.platypus import Table, TableStyle
+
+    t = Table(rows, colWidths=widths, repeatRows=repeat, hAlign="LEFT")
+    base = [("VALIGN", (0, 0), (-1, -1), "TOP"), ("LEFTPADDING", (0, 0), (-1, -1), 3),
+            ("RIGHTPADDING", (0, 0), (-1, -1), 3), ("TOPPADDING", (0, 0), (-1, -1), 2),
+            ("BOTTOMPADDING", (0, 0), (-1, -1), 2.5)]
+    t.setStyle(TableStyle(base + list(style_cmds)))
+    return t
+
+
+# ---------------------------------------------------------------------------------------------------- sections
+
+
+def _identification(record, st: _Styles, width: float) -> list:
+    from reportlab.platypus import Paragraph
+
+    rows = dict(tables.identification_rows(record))
+    out = [Paragraph("PROTECTION SETTINGS SHEET", st.kicker), _p(rows["Tag"], st.tag)]
+    if rows["Description"]:
+        out.append(_p(rows["Description"], st.description))
+
+    def box(label: str, bold: bool = False):
+        value = markup(rows[label]) or "&nbsp;"
+        return [Paragraph(label.upper(), st.label),
+                Paragraph(f"<b>{value}</b>" if bold else value, st.value)]
+
+    issued = (record.sheet or {}).get("status") == "issued"
+    grid = [[box("Site"), "", box("Machine"), box("Practice")],
+            [box("Revision"), box("Date"), box("Status", bold=True), ""]]
+    w = width / 4
+    out.append(_table(grid, [w] * 4, [
+        ("SPAN", (0, 0), (1, 0)), ("SPAN", (2, 1), (3, 1)),
+        ("BOX", (0, 0), (-1, -1), 0.8, st.accent), ("INNERGRID", (0, 0), (-1, -1), 0.4, st.grey),
+        ("TOPPADDING", (0, 0), (-1, -1), 3), ("BOTTOMPADDING", (0, 0), (-1, -1), 4),
+    ] + ([] if issued else [("LINEBELOW", (2, 1), (3, 1), 1.6, st.accent)])))
+    return out
+
+
+def _pairs_table(sections, st: _Styles, width: float):
+    """Label/value pairs two to a row, with a heading row per section."""
+    rows, cmds = [], []
+    for title, pairs in sections:
+        if title:
+            cmds += [("SPAN", (0, len(rows)), (-1, len(rows))),
+                     ("LINEBELOW", (0, len(rows)), (-1, len(rows)), 0.4, st.grey)]
+            if rows:
+                cmds.append(("TOPPADDING", (0, len(rows)), (-1, len(rows)), 6))
+            rows.append([_p(title, st.cell_bold), "", "", ""])
+        for i in range(0, len(pairs), 2):
+            row = []
+            for label, value in pairs[i:i + 2]:
+                row += [_p(label, st.small), _p(value, st.cell)]
+            rows.append(row + [""] * (4 - len(row)))
+    return _table(rows, [width * f for f in (0.2, 0.3, 0.2, 0.3)], cmds)
+
+
+def _inputs(record, st: _Styles, width: float) -> list:
+    out = _heading("Machine and system data, as entered", st)
+    sections = tables.input_sections(record)
+    out.append(_pairs_table(sections, st, width) if sections else _p("No data entered.", st.body))
+    derived = tables.derived_rows(record)
+    if derived:
+        out += [_p("Derived by the study", st.h2), _pairs_table([("", derived)], st, width)]
+    return out
+
+
+_SETTINGS_COLS = (("ID", 0.065), ("Function", 0.175), ("Setting", 0.19), ("Primary", 0.13), ("Relay side", 0.115),
+                  ("Source", 0.115), ("Note", 0.21))
+
+
+def _settings(record, st: _Styles, width: float) -> list:
+    out = _heading("Settings", st)
+    blocks = tables.settings_blocks(record)
+    if not blocks:
+        return out + [_p("The study produced no settings for this machine.", st.body)]
+    rows = [[_p(name, st.head) for name, _ in _SETTINGS_COLS]]
+    cmds = [("LINEBELOW", (0, 0), (-1, 0), 1.0, st.accent)]
+    for block in blocks:
+        first = len(rows)
+        for r in block.rows:
+            rows.append([_p(r.fid, st.cell_bold), _p(r.function, st.cell_bold), _p(r.setting, st.cell),
+                         _p(r.primary, st.cell), _p(r.relay_side, st.cell), _p(r.source, st.cell),
+                         _p(r.note, st.cell)])
+        basis = markup(block.basis) if block.basis else ""
+        if block.references:
+            basis += ("  " if basis else "") + f"<font name='{SANS}'>[{markup(block.references)}]</font>"
+        if basis:
+            rows.append(["", _p_raw(f"Basis: {basis}", st.basis), "", "", "", "", ""])
+            cmds.append(("SPAN", (1, len(rows) - 1), (-1, len(rows) - 1)))
+        cmds.append(("LINEBELOW", (0, len(rows) - 1), (-1, len(rows) - 1), 0.5, st.grey))
+        cmds.append(("NOSPLIT", (0, first), (-1, len(rows) - 1)))
+        if first > 1:
+            cmds.append(("TOPPADDING", (0, first), (-1, first), 4))
+    return out + [_table(rows, [width * f for _, f in _SETTINGS_COLS], cmds, repeat=1)]
+
+
+def _p_raw(markup_text: str, style):
+    from reportlab.platypus import Paragraph
+
+    return Paragraph(markup_text, style)
+
+
+def _findings(record, st: _Styles, width: float) -> list:
+    out = _heading("Findings", st)
+    rows = tables.finding_rows(record)
+    counts = {w: sum(1 for r in rows if r.status == w) for w in ("FAIL", "WARN", "ok")}
+    if counts["FAIL"]:
+        out.append(_p(f"{counts['FAIL']} check(s) failed. Do not apply these settings until every failed check is "
+                      "resolved and the sheet is reissued.", st.alarm))
+    if not rows:
+        return out + [_p("The study reported no findings.", st.body)]
+    out.append(_p(f"{counts['FAIL']} failed, {counts['WARN']} warning(s), {counts['ok']} passed.", st.small))
+    body = [[_p("Result", st.head), _p("Function", st.head), _p("Finding", st.head)]]
+    cmds = [("LINEBELOW", (0, 0), (-1, 0), 1.0, st.accent), ("LINEBELOW", (0, 1), (-1, -1), 0.3, st.grey)]
+    for r in rows:
+        style = st.cell_bold if r.status in ("FAIL", "WARN") else st.cell
+        body.append([_p(r.status, style), _p(r.fid or "machine", st.cell), _p(r.message, style)])
+        if r.status == "FAIL":
+            cmds.append(("BOX", (0, len(body) - 1), (0, len(body) - 1), 1.2, st.accent))
+    return out + [_table(body, [width * 0.08, width * 0.1, width * 0.82], cmds, repeat=1)]
+
+
+def _notice(st: _Styles, width: float) -> list:
+    from reportlab.platypus import Paragraph, Spacer
+
+    cell = [Paragraph("Safety notice", st.h2), _p(SAFETY_NOTICE, st.notice)]
+    return [Spacer(1, 8), _table([[cell]], [width], [("BOX", (0, 0), (-1, -1), 1.2, st.accent),
+                                                     ("LEFTPADDING", (0, 0), (-1, -1), 7),
+                                                     ("RIGHTPADDING", (0, 0), (-1, -1), 7),
+                                                     ("BOTTOMPADDING", (0, 0), (-1, -1), 6)])]
+
+
+def _drawings(record, st: _Styles, width: float, frame_height: float) -> list:
+    from reportlab.platypus import KeepTogether
+
+    drawings = list(record.drawings)
+    for f in record.functions:
+        drawings += f.drawings
+    out = _heading("Drawings", st)
+    if not drawings:
+        return out + [_p("The study produced no drawings for this machine.", st.body)]
+    height = min((frame_height - 60) / 2 - 24, width * 0.72)
+    for d in drawings:
+        out.append(KeepTogether([_p(d.title, st.h2), render(d, width, height)]))
+    return out
+
+
+_TEST_COLS = (("No.", 0.08), ("Test", 0.16), ("Initial state", 0.085), ("Applied, primary", 0.11),
+              ("Applied, relay side", 0.11), ("Expected time", 0.1), ("Accepted band", 0.125),
+              ("Measured time", 0.12), ("Pass / fail", 0.11))
+
+
+def _tests(record, st: _Styles, width: float) -> list:
+    out = _heading("Commissioning tests", st)
+    rows = tables.test_rows(record)
+    if not rows:
+        return out + [_p("The study produced no test points.", st.body)]
+    out.append(_p("Inject each value with the settings of this sheet applied to the relay; write the measured "
+                  "operate time and pass or fail. The accepted band is the expected time plus and minus its "
+                  "tolerance.", st.small))
+    body = [[_p(name, st.head) for name, _ in _TEST_COLS]]
+    for r in rows:
+        body.append([_p(r.number, st.cell_bold), _p(r.test, st.cell), _p(r.initial_state, st.cell),
+                     _p(r.applied_primary, st.cell), _p(r.applied_secondary, st.cell), _p(r.expected, st.cell),
+                     _p(r.band, st.cell), "", ""])
+    cmds = [("LINEBELOW", (0, 0), (-1, 0), 1.0, st.accent), ("LINEBELOW", (0, 1), (-1, -1), 0.3, st.grey),
+            ("BOX", (-2, 1), (-1, -1), 0.6, st.grey), ("INNERGRID", (-2, 1), (-1, -1), 0.6, st.grey),
+            ("TOPPADDING", (0, 1), (-1, -1), 5), ("BOTTOMPADDING", (0, 1), (-1, -1), 7)]
+    out.append(_table(body, [width * f for _, f in _TEST_COLS], cmds, repeat=1))
+    rules = []
+    for f in record.functions:
+        for t in f.test_points:
+            if t.tolerance_rule and t.tolerance_rule not in rules:
+                rules.append(t.tolerance_rule)
+    for rule in rules:
+        out.append(_p(f"Tolerance: {rule}", st.small))
+    blanks = [[_p("Tested by", st.small), "", _p("Date", st.small), "", _p("Relay and firmware", st.small), "",
+               _p("Test set", st.small), ""]]
+    out.append(_table(blanks, [width * f for f in (0.09, 0.16, 0.05, 0.12, 0.14, 0.18, 0.08, 0.18)],
+                      [("LINEBELOW", (1, 0), (1, 0), 0.5, st.grey), ("LINEBELOW", (3, 0), (3, 0), 0.5, st.grey),
+                       ("LINEBELOW", (5, 0), (5, 0), 0.5, st.grey), ("LINEBELOW", (7, 0), (7, 0), 0.5, st.grey),
+                       ("TOPPADDING", (0, 0), (-1, -1), 14)]))
+    return out
+
+
+def _history(record, st: _Styles, width: float) -> list:
+    out = _heading("Revision history", st)
+    body = [[_p(h, st.head) for h in ("Revision", "Date", "By", "Reason")]]
+    for rev, date, by, reason in tables.history_rows(record):
+        body.append([_p(rev, st.cell), _p(date, st.cell), _p(by, st.cell), _p(reason, st.cell)])
+    return out + [_table(body, [width * f for f in (0.1, 0.14, 0.22, 0.54)],
+                         [("LINEBELOW", (0, 0), (-1, 0), 1.0, st.accent),
+                          ("LINEBELOW", (0, 1), (-1, -1), 0.3, st.grey)], repeat=1)]
+
+
+def _signoff(record, st: _Styles, width: float) -> list:
+    from reportlab.platypus import KeepTogether
+
+    out = _heading("Sign-off", st)
+    body = [[_p(h, st.head) for h in ("", "Name", "Date", "Signature")]]
+    for role, name, date in tables.signoff_rows(record):
+        body.append([_p(role, st.cell_bold), _p(name, st.value), _p(date, st.value), ""])
+    cmds = [("LINEBELOW", (1, 1), (-1, -1), 0.6, st.grey), ("TOPPADDING", (0, 1), (-1, -1), 16),
+            ("VALIGN", (0, 1), (-1, -1), "BOTTOM")]
+    out.append(_table(body, [width * f for f in (0.14, 0.32, 0.18, 0.36)], cmds))
+    fp = _p(f"Inputs fingerprint: {record.inputs_fingerprint}", st.cell)
+    expl = _p("The fingerprint identifies the validated machine data these settings were computed from. "
+              "To check that a sheet still matches its machine file: relaywright verify SHEET.pdf --machine FILE.",
+              st.small)
+    return [KeepTogether(out + [_spacer(8), fp, expl])]
+
+
+def _spacer(h: float):
+    from reportlab.platypus import Spacer
+
+    return Spacer(1, h)
+
+
+# ---------------------------------------------------------------------------------------------------- pages
+
+
+def _footer_lines(record) -> tuple[str, str]:
+    sheet = record.sheet or {}
+    status = "issued" if sheet.get("status") == "issued" else "DRAFT"
+    rev = sheet.get("revision", record.revision)
+    return (f"{plain(record.tag)} · revision {rev} · {status}",
+            f"inputs fingerprint {record.inputs_fingerprint}")
+
+
+@lru_cache(maxsize=1)
+def _canvas_class():
+    from reportlab.pdfgen.canvas import Canvas
+
+    class SheetCanvas(Canvas):
+        """Holds the pages until the end so that every footer can say 'page x of y'."""
+
+        def __init__(self, *args, footer=None, **kwargs):
+            super().__init__(*args, **kwargs)
+            self._pages: list[dict] = []
+            self._footer = footer
+
+        def showPage(self):
+            self._pages.append(dict(self.__dict__))
+            self._startPage()
+
+        def save(self):
+            total = len(self._pages)
+            for number, state in enumerate(self._pages, start=1):
+                self.__dict__.update(state)
+                self._footer(self, number, total)
+                super().showPage()
+            super().save()
+
+    return SheetCanvas
+
+
+def _draw_footer(canvas, number: int, total: int, *, lines, st: _Styles, width: float):
+    from reportlab.platypus import Paragraph
+
+    canvas.saveState()
+    y = _MARGIN_BOTTOM - 22
+    canvas.setStrokeColor(st.accent)
+    canvas.setLineWidth(0.6)
+    canvas.line(_MARGIN_X, y + 12, _MARGIN_X + width, y + 12)
+    canvas.setFont(SANS_BOLD, 7.5)
+    canvas.drawRightString(_MARGIN_X + width, y + 2, f"page {number} of {total}")
+    left_w = width - 90
+    first = Paragraph(markup(_fit(lines[0], left_w, 7.5)), st.footer)
+    first.wrapOn(canvas, left_w, 10)
+    first.drawOn(canvas, _MARGIN_X, y)
+    canvas.setFont(SANS, 6.5)
+    canvas.setFillColor(st.grey)
+    canvas.drawString(_MARGIN_X, y - 9, lines[1])
+    canvas.restoreState()
+
+
+def _fit(text: str, width: float, size: float) -> str:
+    """``text`` cut with an ellipsis to fit ``width`` at ``size`` (the full tag is on page 1)."""
+    from reportlab.pdfbase.pdfmetrics import stringWidth
+
+    if stringWidth(text, SANS, size) <= width:
+        return text
+    while text and stringWidth(text + "…", SANS, size) > width:
+        text = text[:-1]
+    return text + "…"
+
+
+def build_sheet(record, page_size: str | None = None) -> bytes:
+    """The PDF settings sheet for ``record`` as bytes (A4 or letter; default the record's ``sheet.page_size``)."""
+    from reportlab.platypus import BaseDocTemplate, Frame, PageBreak, PageTemplate
+
+    register()
+    size = page_size_of(page_size or (record.sheet or {}).get("page_size") or "A4")
+    st = _Styles()
+    page_w, page_h = size
+    width = page_w - 2 * _MARGIN_X
+    frame_h = page_h - _MARGIN_TOP - _MARGIN_BOTTOM
+    buf = io.BytesIO()
+    sheet = record.sheet or {}
+    rev = sheet.get("revision", record.revision)
+    doc = BaseDocTemplate(
+        buf, pagesize=size, invariant=True, leftMargin=_MARGIN_X, rightMargin=_MARGIN_X, topMargin=_MARGIN_TOP,
+        bottomMargin=_MARGIN_BOTTOM, title=f"{plain(record.tag)} protection settings, revision {rev}",
+        author=plain(sheet.get("prepared_by") or ""), subject=f"Protection settings sheet for {plain(record.tag)}",
+        keywords=keywords(record), creator=f"relaywright {_version()}".strip(), lang="en")
+    frame = Frame(_MARGIN_X, _MARGIN_BOTTOM, width, frame_h, leftPadding=0, rightPadding=0, topPadding=0,
+                  bottomPadding=0, id="body")
+    doc.addPageTemplates([PageTemplate(id="sheet", frames=[frame], pagesize=size)])
+
+    story: list = []
+    story += _identification(record, st, width)
+    story += _inputs(record, st, width)
+    story += _settings(record, st, width)
+    story += _findings(record, st, width)
+    story += _notice(st, width)
+    story.append(PageBreak())
+    story += _drawings(record, st, width, frame_h)
+    story.append(PageBreak())
+    story += _tests(record, st, width)
+    story += _history(record, st, width)
+    story += _signoff(record, st, width)
+
+    footer = partial(_draw_footer, lines=_footer_lines(record), st=st, width=width)
+    doc.build(story, canvasmaker=partial(_canvas_class(), footer=footer))
+    return buf.getvalue()
