@@ -1,0 +1,261 @@
+"""`relaywright batch`: many machine files into sheets, records and an index, in a spawn process pool.
+
+These are behaviour tests of the batch (what is written, kept, skipped and reported); the settings themselves are
+checked against their standards in the study tests.
+"""
+
+from __future__ import annotations
+
+import copy
+import json
+import os
+import signal
+import subprocess
+import sys
+import time
+import tomllib
+import unicodedata
+from pathlib import Path
+
+import pytest
+
+from machines.errors import InputError
+from machines.files import dumps
+from wizard.batch import OUTCOMES, Outcome, output_names, run_batch, safe_name, summary_line
+
+pytest.importorskip("reports.sheet", reason="reports.sheet (build_sheet) is not in this checkout yet: the batch "
+                                            "writes a sheet for every machine")
+
+ROOT = Path(__file__).resolve().parents[1]
+EXAMPLES = ROOT / "examples"
+
+
+@pytest.fixture(autouse=True)
+def wide_terminal(monkeypatch):
+    monkeypatch.setenv("COLUMNS", "250")  # rich folds long cells at the 80 columns of a pipe
+
+
+def example(name: str) -> dict:
+    return tomllib.loads((EXAMPLES / name).read_text("utf-8"))
+
+
+def write(path: Path, data: dict) -> Path:
+    path.parent.mkdir(parents=True, exist_ok=True)
+    path.write_text(dumps(data), "utf-8")
+    return path
+
+
+@pytest.fixture
+def plant(tmp_path) -> Path:
+    """Five TOML files: three machines (two share a tag and revision), one broken, one that is not a machine."""
+    src = tmp_path / "plant"
+    chiller = example("chiller-compressor-motor.toml")
+    pump = example("condenser-pump-motor.toml")
+    pump["sheet"]["tag"] = "CW-P-201 <spare> & co"  # markup characters must print as written
+    write(src / "north" / "chiller.toml", chiller)
+    write(src / "south" / "chiller.toml", copy.deepcopy(chiller))  # same tag and revision as north/
+    write(src / "pump.toml", pump)
+    broken = copy.deepcopy(chiller)
+    broken["sheet"]["tag"] = "CH-M-102"
+    broken["machine"]["frequency"] = "60 V"
+    write(src / "broken.toml", broken)
+    (src / "tools.toml").write_text('[tool.something]\nname = "not a machine"\n', "utf-8")
+    return src
+
+
+def outputs(out: Path) -> list[str]:
+    return sorted(p.name for p in out.iterdir())
+
+
+def test_batch_in_a_spawn_pool(plant, tmp_path, capsys):
+    out = tmp_path / "out"
+    code = run_batch(plant, out, workers=2)
+    captured = capsys.readouterr()
+    assert code == 2  # the worst outcome: one file with bad input
+    assert outputs(out) == ["CH-M-101-rev1--north_chiller.json", "CH-M-101-rev1--north_chiller.pdf",
+                            "CH-M-101-rev1--south_chiller.json", "CH-M-101-rev1--south_chiller.pdf",
+                            "CW-P-201_spare_co-rev2.json", "CW-P-201_spare_co-rev2.pdf", "index.pdf"]
+    text = captured.out
+    assert "broken.toml" in text and "bad input" in text and "machine.frequency" in text
+    assert "tools.toml" in text and "not a machine file" in text
+    assert "3 machine files" not in text and "4 machine files" in text
+    assert "Traceback" not in captured.out + captured.err
+    record = json.loads((out / "CW-P-201_spare_co-rev2.json").read_text("utf-8"))
+    assert record["tag"] == "CW-P-201 <spare> & co" and record["format"] == "relaywright.settings/1"
+    assert (out / "CH-M-101-rev1--north_chiller.pdf").read_bytes()[:5] == b"%PDF-"
+
+
+def index_text(out: Path) -> str:
+    from pypdf import PdfReader
+
+    text = " ".join(page.extract_text() for page in PdfReader(out / "index.pdf").pages)
+    return " ".join(unicodedata.normalize("NFKC", text).split())
+
+
+def test_index_lists_every_machine_file(plant, tmp_path, capsys):
+    out = tmp_path / "out"
+    run_batch(plant, out, workers=1)
+    text = index_text(out)
+    record = json.loads((out / "CH-M-101-rev1--north_chiller.json").read_text("utf-8"))
+    assert "CW-P-201 <spare> & co" in text
+    assert text.count("CH-M-101") >= 2
+    assert record["inputs_fingerprint"] in text.replace(" ", "")
+    assert "broken.toml" in text and "bad input" in text
+    assert "tools.toml" not in text
+    assert "licensed engineer" in text  # the caution is on the index too
+
+
+def test_current_sheets_are_kept_unless_forced(plant, tmp_path, capsys):
+    out = tmp_path / "out"
+    run_batch(plant, out, workers=1)
+    before = {p.name: p.stat().st_ino for p in out.iterdir()}
+    capsys.readouterr()
+    assert run_batch(plant, out, workers=1) == 2
+    again = {p.name: p.stat().st_ino for p in out.iterdir()}
+    kept = {k: v for k, v in again.items() if k != "index.pdf"}
+    assert kept == {k: v for k, v in before.items() if k != "index.pdf"}  # not one sheet or record rewritten
+    assert "3 already current" in capsys.readouterr().out
+
+    run_batch(plant, out, workers=1, force=True)
+    forced = {p.name: p.stat().st_ino for p in out.iterdir()}
+    assert all(forced[name] != before[name] for name in before)  # every file written anew (atomic rename)
+    assert "already current" not in capsys.readouterr().out
+
+
+def test_changed_machine_is_rebuilt_alone(plant, tmp_path, capsys):
+    out = tmp_path / "out"
+    run_batch(plant, out, workers=1)
+    before = {p.name: p.stat().st_ino for p in out.iterdir()}
+    pump = tomllib.loads((plant / "pump.toml").read_text("utf-8"))
+    pump["machine"]["rated_current"] = "54 A"
+    write(plant / "pump.toml", pump)
+    run_batch(plant, out, workers=1)
+    after = {p.name: p.stat().st_ino for p in out.iterdir()}
+    changed = sorted(name for name in before if after[name] != before[name])
+    assert changed == ["CW-P-201_spare_co-rev2.json", "CW-P-201_spare_co-rev2.pdf", "index.pdf"]
+
+
+def test_new_revision_keeps_the_earlier_sheet(plant, tmp_path, capsys):
+    out = tmp_path / "out"
+    run_batch(plant, out, workers=1)
+    pump = tomllib.loads((plant / "pump.toml").read_text("utf-8"))
+    pump["sheet"]["revision"] = 3
+    write(plant / "pump.toml", pump)
+    run_batch(plant, out, workers=1)
+    assert {"CW-P-201_spare_co-rev2.pdf", "CW-P-201_spare_co-rev3.pdf"} <= set(outputs(out))
+
+
+def test_bad_input_keeps_the_previous_sheet(plant, tmp_path, capsys):
+    out = tmp_path / "out"
+    run_batch(plant, out, workers=1)
+    sheet = (out / "CW-P-201_spare_co-rev2.pdf").read_bytes()
+    record = (out / "CW-P-201_spare_co-rev2.json").read_bytes()
+    pump = tomllib.loads((plant / "pump.toml").read_text("utf-8"))
+    pump["machine"]["rated_current"] = "52 V"
+    write(plant / "pump.toml", pump)
+    capsys.readouterr()
+    assert run_batch(plant, out, workers=1) == 2
+    assert "pump.toml" in capsys.readouterr().out
+    assert (out / "CW-P-201_spare_co-rev2.pdf").read_bytes() == sheet
+    assert (out / "CW-P-201_spare_co-rev2.json").read_bytes() == record
+    assert not [p for p in out.iterdir() if p.name.endswith(".tmp")]
+
+
+def test_issued_revision_is_not_replaced_by_other_inputs(plant, tmp_path, capsys):
+    out = tmp_path / "out"
+    pump = tomllib.loads((plant / "pump.toml").read_text("utf-8"))
+    pump["sheet"]["status"] = "issued"
+    write(plant / "pump.toml", pump)
+    run_batch(plant, out, workers=1)
+    sheet = (out / "CW-P-201_spare_co-rev2.pdf").read_bytes()
+    pump["machine"]["rated_current"] = "54 A"
+    write(plant / "pump.toml", pump)
+    capsys.readouterr()
+    assert run_batch(plant, out, workers=1, force=True) == 2
+    assert "raise sheet.revision" in capsys.readouterr().out
+    assert (out / "CW-P-201_spare_co-rev2.pdf").read_bytes() == sheet
+
+
+def test_all_good_exits_zero(tmp_path, capsys):
+    src = tmp_path / "plant"
+    write(src / "pump.toml", example("condenser-pump-motor.toml"))
+    (src / "other.toml").write_text('title = "a file of another tool"\n', "utf-8")
+    assert run_batch(src, tmp_path / "out", workers=2) == 0  # one job: run in this process
+    assert "1 other TOML file skipped" in capsys.readouterr().out
+
+
+def test_folder_without_toml_is_bad_input(tmp_path):
+    with pytest.raises(InputError, match="no .toml files found"):
+        run_batch(tmp_path, tmp_path / "out")
+    with pytest.raises(InputError, match="expected a folder of machine files"):
+        run_batch(tmp_path / "missing", tmp_path / "out")
+
+
+def test_exit_code_is_the_worst_outcome():
+    # DESIGN.md, exit codes: 0 done (warnings included), 1 a check failed, 2 bad input
+    assert {s: code for s, (_, code, _) in OUTCOMES.items()} == {"skipped": 0, "ok": 0, "warn": 0, "fail": 1,
+                                                                  "bad": 2}
+    outcomes = [Outcome("a", "ok"), Outcome("b", "fail", failures=1), Outcome("c", "warn", warnings=2)]
+    assert max(o.exit_code for o in outcomes) == 1
+    assert summary_line(outcomes) == "3 machine files: 1 ok, 1 with warnings, 1 with failed checks, 0 bad input"
+
+
+@pytest.mark.parametrize("tag", ["../../etc/passwd", "..", "a/b\\c", "C:\\x", "\x00evil", "..\u2024..", "/abs"])
+def test_names_stay_inside_the_output_folder(tag):
+    name = safe_name(tag)
+    assert name and "/" not in name and "\\" not in name and ".." not in name and not name.startswith(".")
+    assert Path("/out", f"{name}.pdf").resolve().parent == Path("/out")
+
+
+def test_names_never_clash():
+    items = [("a.toml", "M-1", 1), ("b.toml", "m-1", 1), ("c.toml", "index", 0), ("index.toml", "", 0),
+             ("d.toml", "M-1/x", 1), ("e.toml", "M-1_x", 1)]
+    names = output_names(items)
+    assert len({n.lower() for n in names.values()}) == len(items)
+    assert "index" not in {n.lower() for n in names.values()}
+
+
+def make_many(src: Path, n: int) -> None:
+    base = example("chiller-compressor-motor.toml")
+    for i in range(n):
+        data = copy.deepcopy(base)
+        data["sheet"]["tag"] = f"CH-M-{200 + i}"
+        write(src / f"m{i:03d}.toml", data)
+
+
+def test_cli_batch_and_ctrl_c(tmp_path):
+    src, out = tmp_path / "many", tmp_path / "out"
+    make_many(src, 80)
+    cmd = [sys.executable, "-m", "wizard.cli", "batch", str(src), "-o", str(out), "--workers", "2"]
+    proc = subprocess.Popen(cmd, cwd=ROOT, stdout=subprocess.PIPE, stderr=subprocess.PIPE, text=True,
+                            start_new_session=True)
+    deadline = time.monotonic() + 30
+    while time.monotonic() < deadline and not (out.is_dir() and any(out.glob("*.json"))):
+        time.sleep(0.02)
+    os.killpg(proc.pid, signal.SIGINT)  # what Ctrl-C in a terminal does: the whole process group
+    stdout, stderr = proc.communicate(timeout=30)
+    assert proc.returncode == 130, stderr
+    assert "stopped: " in stderr and "Traceback" not in stderr + stdout and "exception" not in stderr
+    assert not list(out.glob(".*.tmp"))
+    for record in out.glob("*.json"):  # every record written stands beside its finished sheet
+        assert json.loads(record.read_text("utf-8"))["tag"].startswith("CH-M-")
+        assert record.with_suffix(".pdf").read_bytes()[-6:].strip().endswith(b"%%EOF")
+    assert no_process_left(proc.pid)
+
+
+def no_process_left(session: int, wait: float = 5.0) -> bool:
+    """No process of the session is left (the pool's resource tracker ends just after the main process)."""
+    deadline = time.monotonic() + wait
+    while time.monotonic() < deadline:
+        if subprocess.run(["pgrep", "-s", str(session)], capture_output=True).stdout == b"":
+            return True
+        time.sleep(0.05)
+    return False
+
+
+def test_cli_batch_reports_in_one_line(plant, tmp_path):
+    result = subprocess.run([sys.executable, "-m", "wizard.cli", "batch", str(plant / "pump.toml"), "-o",
+                             str(tmp_path / "out")], cwd=ROOT, capture_output=True, text=True, timeout=60)
+    assert result.returncode == 2
+    assert result.stderr.strip().splitlines()[0].startswith("error: ")
+    assert "expected a folder of machine files" in result.stderr and "Traceback" not in result.stderr
