@@ -259,7 +259,7 @@ _TEST_COLS = (("No.", 0.08), ("Test", 0.16), ("Initial state", 0.085), ("Applied
 
 def _tests(record, st: _Styles, width: float) -> list:
     out = _heading("Commissioning tests", st)
-    rows = tables.test_rows(record)
+    rows = tables.commissioning_rows(record)
     if not rows:
         return out + [_p("The study produced no test points.", st.body)]
     out.append(_p("Inject each value with the settings of this sheet applied to the relay; write the measured "

@@ -48,7 +48,7 @@ class FindingRow(NamedTuple):
     message: str
 
 
-class TestRow(NamedTuple):
+class CommissioningRow(NamedTuple):
     """One commissioning injection; ``measured`` and ``result`` stay empty for the tester's hand."""
 
     number: str
@@ -164,7 +164,7 @@ def finding_rows(record, include_ok: bool = True) -> list[FindingRow]:
             for fid, c in record.all_checks() if include_ok or c.status != "ok"]
 
 
-def test_rows(record) -> list[TestRow]:
+def commissioning_rows(record) -> list[CommissioningRow]:
     """The commissioning test table, numbered ``<function id>.<n>`` so a handwritten note can point at a row."""
     rows = []
     for f in record.functions:
@@ -179,7 +179,7 @@ def test_rows(record) -> list[TestRow]:
             test = t.description or t.quantity
             if t.description and t.quantity and t.quantity.lower() not in t.description.lower():
                 test = f"{t.quantity}: {t.description}"
-            rows.append(TestRow(
+            rows.append(CommissioningRow(
                 number=f"{f.id}.{n}", fid=f.id, test=test, initial_state=t.initial_state or "—",
                 applied_primary=primary, applied_secondary=secondary,
                 expected="must not operate" if t.expected_time is None else quantity(t.expected_time, "s"),

@@ -11,7 +11,7 @@ from __future__ import annotations
 import math
 
 from machines.record import (Check, Circle, Drawing, FunctionSettings, Series, Setting, SettingsRecord,
-                             TestPoint)
+                             TestPoint as Injection)
 
 FINGERPRINT = "sha256:" + "0123456789abcdef" * 4
 
@@ -74,8 +74,8 @@ def motor_record(tag: str = "CH-M-101", description: str = "Chiller 1 compressor
         "Pickup at service factor times rated current; heating time constant from the hot safe stall time.",
         ["IEC 60255-149"],
         checks=[Check("ok", "Thermal curve from hot lies below the hot safe stall time at locked-rotor current.")],
-        test_points=[TestPoint("current", 10.0, "A", 71.3, 3.6, True, "cold", 500.0, "A", "2× pickup from cold"),
-                     TestPoint("current", 4.0, "A", None, 0.0, True, "cold", 200.0, "A", "below pickup")])
+        test_points=[Injection("current", 10.0, "A", 71.3, 3.6, True, "cold", 500.0, "A", "2× pickup from cold"),
+                     Injection("current", 4.0, "A", None, 0.0, True, "cold", 200.0, "A", "below pickup")])
     f51 = FunctionSettings(
         "51LR", "Locked rotor",
         {"pickup_current": Setting(450.0, "A", "common-practice", secondary=9.0, secondary_unit="A"),
@@ -84,7 +84,7 @@ def motor_record(tag: str = "CH-M-101", description: str = "Chiller 1 compressor
         "Pickup between the full-load current and the starting current; delay longer than the start, shorter "
         "than the stall time.", ["IEEE C37.96"],
         checks=[Check("warn", "Acceleration time 8 s leaves 4 s margin to the 51LR delay.")],
-        test_points=[TestPoint("current", 12.0, "A", 12.0, 0.5, True, "", 600.0, "A")])
+        test_points=[Injection("current", 12.0, "A", 12.0, 0.5, True, "", 600.0, "A")])
     f50 = FunctionSettings(
         "50P", "Instantaneous overcurrent",
         {"enabled": Setting(True, "", "derived"),

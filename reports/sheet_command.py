@@ -1,0 +1,86 @@
+"""``relaywright sheet``: read a machine file, run the study, write the PDF sheet (optionally signed).
+
+The signing password comes from the environment variable ``RELAYWRIGHT_SIGN_PASSWORD``, else from a hidden prompt;
+never from the command line (it would stay in the shell history and the process list). Without a terminal and
+without the variable, the command stops with exit 2 instead of waiting for input nobody can type.
+"""
+
+from __future__ import annotations
+
+import getpass
+import os
+import sys
+from pathlib import Path
+
+from machines.errors import InputError
+
+PASSWORD_ENV = "RELAYWRIGHT_SIGN_PASSWORD"
+_UNSAFE = set('/\\<>:"|?*')
+
+
+def safe_name(tag: str, limit: int = 80) -> str:
+    """A file-name stem made from a tag: no path separators, no '..', no control or reserved characters.
+
+    >>> safe_name("CW-P-201"), safe_name("../../etc/passwd"), safe_name("M-101 <spare> & co"), safe_name("..")
+    ('CW-P-201', '_._etc_passwd', 'M-101 _spare_ & co', 'sheet')
+    """
+    chars = ["_" if (c in _UNSAFE or not c.isprintable()) else c for c in str(tag)]
+    text = "".join(chars)
+    while ".." in text:
+        text = text.replace("..", ".")
+    text = text.strip(" .")
+    while "__" in text:
+        text = text.replace("__", "_")
+    text = text[:limit].strip(" .")
+    return text if text.strip("_") else "sheet"
+
+
+def default_output(machine_file: Path, tag: str, revision: int) -> Path:
+    """``<tag>-rev<N>.pdf`` beside the machine file."""
+    return Path(machine_file).parent / f"{safe_name(tag)}-rev{revision}.pdf"
+
+
+def signing_password(key: Path) -> str:
+    """The PKCS#12 password: from the environment, else asked without echo; InputError when neither is possible."""
+    value = os.environ.get(PASSWORD_ENV)
+    if value is not None:
+        return value
+    if not (sys.stdin and sys.stdin.isatty()):
+        raise InputError("--sign", f"no password for {key}: set {PASSWORD_ENV} or run in a terminal to be asked")
+    return getpass.getpass(f"Password for {key}: ")
+
+
+def make_sheet(file: Path, output: Path | None = None, page_size: str | None = None, sign: Path | None = None) -> int:
+    """Write the sheet; print its path. Exit code 0, or 1 when a check failed (the sheet is still written)."""
+    from machines.files import load_case, write_atomic
+    from machines.study import run_study
+    from reports.sheet import build_sheet, page_size_of
+
+    if page_size is not None:
+        try:
+            page_size_of(page_size)  # bad --page-size: stop before any work
+        except InputError as e:
+            raise InputError("--page-size", e.detail) from None
+    password = None
+    if sign is not None:
+        if not Path(sign).is_file():
+            raise InputError(str(sign), "no such key file (expected a PKCS#12 .p12/.pfx file)")
+        password = signing_password(Path(sign))
+    case, warnings = load_case(file)
+    record = run_study(case, warnings)
+    pdf = build_sheet(record, page_size)
+    if sign is not None:
+        from reports.signing import sign_pdf
+
+        pdf = sign_pdf(pdf, sign, password)
+    target = default_output(Path(file), record.tag, record.revision) if output is None else Path(output)
+    if target.is_dir():
+        target = target / default_output(Path(file), record.tag, record.revision).name
+    write_atomic(target, pdf)
+    print(target)
+    failed = sum(1 for _, c in record.all_checks() if c.status == "fail")
+    if failed:
+        print(f"{failed} check(s) failed: see the findings on the sheet; do not apply these settings as they are",
+              file=sys.stderr)
+        return 1
+    return 0

@@ -1,0 +1,184 @@
+"""The PDF sheet, read back with an independent PDF library (pypdf) and, where present, poppler's pdftotext."""
+
+from __future__ import annotations
+
+import io
+import re
+import shutil
+import subprocess
+import time
+import unicodedata
+
+import pytest
+from pypdf import PdfReader
+
+from machines.errors import InputError
+from machines.notices import SAFETY_NOTICE
+from reports import tables
+from reports.fonts import register
+from reports.sheet import build_sheet
+
+try:
+    from tests.test_sheet_records import FINGERPRINT, motor_record
+except ImportError:  # tests/ on sys.path instead of the project root
+    from test_sheet_records import FINGERPRINT, motor_record
+
+# ISO 216 A4 is 210 mm × 297 mm = 595.28 pt × 841.89 pt; ANSI letter 8.5 in × 11 in = 612 pt × 792 pt
+A4_PT = (595.28, 841.89)
+LETTER_PT = (612.0, 792.0)
+
+
+def norm(text: str) -> str:
+    """NFKC and one space for any run of white space (pypdf returns table cells one per line)."""
+    return re.sub(r"\s+", " ", unicodedata.normalize("NFKC", text)).strip()
+
+
+def pages_text(pdf: bytes) -> list[str]:
+    return [norm(p.extract_text() or "") for p in PdfReader(io.BytesIO(pdf)).pages]
+
+
+@pytest.fixture(scope="module")
+def sheet() -> bytes:
+    return build_sheet(motor_record())
+
+
+@pytest.fixture(scope="module")
+def text(sheet) -> str:
+    return " ".join(pages_text(sheet))
+
+
+def test_text_has_tag_ids_values_notice_and_fingerprint(sheet, text):
+    record = motor_record()
+    assert "CH-M-101" in text
+    for f in record.functions:
+        assert f.id in text
+        assert norm(f.title) in text
+    printed = [v for b in tables.settings_blocks(record) for r in b.rows for v in (r.primary, r.relay_side) if v]
+    assert len(printed) > 10
+    for value in printed:
+        assert norm(value) in text, value
+    assert norm(SAFETY_NOTICE) in text
+    assert FINGERPRINT in text
+    for _, c in record.all_checks():
+        assert norm(c.message) in text
+
+
+def test_every_page_has_footer_with_fingerprint_and_page_numbers(sheet):
+    pages = pages_text(sheet)
+    assert len(pages) >= 4
+    for i, page in enumerate(pages, start=1):
+        assert FINGERPRINT in page
+        assert f"page {i} of {len(pages)}" in page
+        assert "CH-M-101 · revision 2 · DRAFT" in page
+
+
+def test_order_of_sections(text):
+    marks = ["PROTECTION SETTINGS SHEET", "Machine and system data, as entered", "Settings", "Findings",
+             "Safety notice", "Drawings", "Commissioning tests", "Revision history", "Sign-off"]
+    positions = [text.index(m) for m in marks]
+    assert positions == sorted(positions)
+
+
+def test_drawings_and_test_table_present(text):
+    for title in ("Motor starting and thermal limits", "Loss-of-field zones",
+                  "Underfrequency stages against the turbine bands", "Negative-sequence current against"):
+        assert title in text
+    for row in tables.commissioning_rows(motor_record()):
+        assert row.number in text
+        assert norm(row.band) in text
+    for name in ("A. Okafor", "L. Brandt", "M. Sato"):
+        assert name in text
+
+
+@pytest.mark.parametrize("size, expected", [("A4", A4_PT), ("letter", LETTER_PT), ("LETTER", LETTER_PT)])
+def test_page_size(size, expected):
+    pdf = build_sheet(motor_record(), size)
+    reader = PdfReader(io.BytesIO(pdf))
+    for page in reader.pages:
+        assert float(page.mediabox.width) == pytest.approx(expected[0], abs=0.01)
+        assert float(page.mediabox.height) == pytest.approx(expected[1], abs=0.01)
+
+
+def test_page_size_from_the_machine_file_and_page_count():
+    reader = PdfReader(io.BytesIO(build_sheet(motor_record(page_size="letter"))))
+    assert float(reader.pages[0].mediabox.width) == pytest.approx(LETTER_PT[0])
+    # regression pin of this fixture's layout: settings over two pages, drawings two to a page, then the tests
+    assert len(reader.pages) == 5
+
+
+def test_bad_page_size():
+    with pytest.raises(InputError, match="expected A4 or letter, got 'A3'"):
+        build_sheet(motor_record(), "A3")
+
+
+def test_deterministic(sheet):
+    assert build_sheet(motor_record()) == sheet
+
+
+def test_metadata_carries_fingerprint_and_tag(sheet):
+    meta = PdfReader(io.BytesIO(sheet)).metadata
+    assert f"inputs_fingerprint={FINGERPRINT}" in meta["/Keywords"]
+    assert meta["/Keywords"].endswith("tag=CH-M-101")
+    assert "CH-M-101" in meta["/Title"]
+
+
+@pytest.mark.parametrize("tag", ["M-101 <spare> & co", "P-7 <font size=40>big</font>", "A&amp;B <b>x</b>"])
+def test_markup_in_tags_prints_as_written(tag):
+    pdf = build_sheet(motor_record(tag=tag, description=f"desc {tag} <br/> end"))
+    pages = pages_text(pdf)
+    assert tag in pages[0]
+    assert f"desc {tag} <br/> end" in pages[0]
+    assert all(tag in p for p in pages)  # the footer carries the tag too
+    assert PdfReader(io.BytesIO(pdf)).metadata["/Keywords"].endswith(f"tag={tag}")
+
+
+def test_unicode_tag_latin():
+    tag = "Pumpe-Ü-Ω-µ-3½"
+    text = " ".join(pages_text(build_sheet(motor_record(tag=tag))))
+    assert norm(tag) in text
+
+
+def test_unicode_tag_beyond_latin():
+    if not register():
+        pytest.skip("DejaVu Sans is not installed; characters outside Latin-1 have no font to print in")
+    tag = "Насос-3 Αντλία"
+    pages = pages_text(build_sheet(motor_record(tag=tag)))
+    assert tag in pages[0]
+    assert tag in pages[-1]
+
+
+def test_long_description_wraps_inside_the_page(tmp_path):
+    if shutil.which("pdftotext") is None:
+        pytest.skip("pdftotext (poppler-utils) is not installed")
+    description = " ".join(["centrifugal"] * 60) + " " + "X" * 300
+    pdf = build_sheet(motor_record(description=description))
+    path = tmp_path / "long.pdf"
+    path.write_bytes(pdf)
+    out = subprocess.run(["pdftotext", "-bbox", "-f", "1", "-l", "1", str(path), "-"], capture_output=True,
+                         text=True, check=True).stdout
+    page_w = float(re.search(r'<page width="([\d.]+)"', out).group(1))
+    xmax = [float(x) for x in re.findall(r'xMax="([\d.]+)"', out)]
+    assert xmax and max(xmax) <= page_w - 30  # nothing runs into the right margin
+    text = pages_text(pdf)[0]
+    assert text.count("centrifugal") >= 60
+    assert text.replace(" ", "").count("X" * 300) == 1  # the unbroken word is split over lines, not lost
+
+
+def test_record_without_functions_or_drawings():
+    record = motor_record()
+    record.functions, record.drawings, record.checks, record.derived = [], [], [], {}
+    text = " ".join(pages_text(build_sheet(record)))
+    assert "The study produced no settings for this machine." in text
+    assert "The study produced no drawings for this machine." in text
+    assert "The study reported no findings." in text
+    assert norm(SAFETY_NOTICE) in text
+
+
+def test_build_is_fast():
+    record = motor_record()
+    build_sheet(record)
+    start = time.perf_counter()
+    build_sheet(record)
+    elapsed = time.perf_counter() - start
+    # target well under 100 ms on a 2-core machine (STACK.md); the bound leaves room for a busy test machine
+    assert elapsed < 0.5, elapsed
