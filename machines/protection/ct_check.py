@@ -1,0 +1,72 @@
+"""Phase CT check: ratio against full-load current and the IEEE C37.110 saturation criterion for the 50P region.
+
+The CT is not a protection function with settings, so this rule returns no function: its findings go to the
+machine-wide checks (``ctx.extras["checks"]``) and its numbers to ``ctx.derived``, where the sheet prints them.
+Saturation is a warning, not a failure: a saturated CT still delivers current far above a 50P pickup for part of
+every cycle, so the element operates, later; whether that is acceptable is the relay maker's CT requirement.
+"""
+
+from __future__ import annotations
+
+import math
+
+from machines.protection.base import StudyContext
+from machines.protection.motor_basis import basis_of, chosen
+from machines.record import Check, Setting
+from machines.standards.ct_saturation import SATURATION_LIMIT, c37110_saturation_index, c_class_voltage, \
+    time_to_saturate
+
+RATIO_LOW = 0.5  #: FLC / CT primary below this: poor resolution of the overload region [P]
+RATIO_HIGH = 1.0  #: above this the CT runs beyond its rating at full load [P]
+
+
+def settings(ctx: StudyContext) -> None:
+    case = ctx.case
+    ins = case.instruments
+    b = basis_of(ctx)
+    checks: list[Check] = ctx.extras.setdefault("checks", [])
+    ct = ins.phase_ct
+    share = b.flc / ct.primary
+    if share < RATIO_LOW:
+        checks.append(Check("warn", f"Phase CT {ct.primary:.0f}/{ct.secondary:g} A: full-load current is only "
+                                    f"{share:.0%} of the CT primary, which coarsens the overload measurement."))
+    elif share > RATIO_HIGH:
+        checks.append(Check("warn", f"Phase CT {ct.primary:.0f}/{ct.secondary:g} A: full-load current is {share:.0%} "
+                                    "of the CT primary; the CT needs a continuous thermal rating factor above 1."))
+    else:
+        checks.append(Check("ok", f"Phase CT {ct.primary:.0f}/{ct.secondary:g} A: full-load current is {share:.0%} of "
+                                  "the CT primary."))
+    if not ins.phase_ct_class or not ins.phase_ct_burden:
+        checks.append(Check("warn", "The phase CT class or burden is missing (instruments.phase_ct_class, "
+                                    "phase_ct_burden): the IEEE C37.110 saturation check was not made."))
+        return None
+    vc = c_class_voltage(ins.phase_ct_class)
+    if b.fault_max is None:
+        checks.append(Check("warn", "No fault level: the IEEE C37.110 saturation check was not made."))
+        return None
+    idx = c37110_saturation_index(b.fault_max, ct.primary, ins.phase_ct_burden, vc, b.x_over_r)
+    sym = c37110_saturation_index(b.fault_max, ct.primary, ins.phase_ct_burden, vc, 0.0)
+    ts = time_to_saturate(b.fault_max, ct.primary, ins.phase_ct_burden, vc, b.x_over_r, case.machine.frequency)
+    ctx.derived["ct_saturation_index"] = Setting(idx, "", "derived", label="IEEE C37.110 (1 + X/R)·I_f·Z_b",
+                                                 note="≤ 20 avoids saturation")
+    if math.isfinite(ts):
+        ctx.derived["ct_time_to_saturate"] = Setting(ts, "s", "derived", label="CT time to saturate, full offset")
+    p50 = chosen(ctx, "50P")
+    if idx <= SATURATION_LIMIT:
+        checks.append(Check("ok", f"Phase CT {ins.phase_ct_class}: (1 + X/R)·I_f·Z_b = {idx:.1f} ≤ 20 at the maximum "
+                                  f"fault {b.fault_max / 1e3:.1f} kA: no saturation expected (IEEE C37.110)."))
+    elif sym <= SATURATION_LIMIT:
+        cyc = ts * case.machine.frequency
+        checks.append(Check("warn", f"Phase CT {ins.phase_ct_class}: (1 + X/R)·I_f·Z_b = {idx:.0f} > 20 at "
+                                    f"{b.fault_max / 1e3:.1f} kA, so an offset fault saturates it after about "
+                                    f"{ts * 1e3:.1f} ms ({cyc:.2f} cycles); the symmetrical check {sym:.1f} ≤ 20 "
+                                    "passes. 50P" + (" (in service)" if p50.get("enabled") else "")
+                                    + " must operate on the first unsaturated half cycle; check the relay maker's "
+                                    "CT requirement or lower the burden."))
+    else:
+        checks.append(Check("warn", f"Phase CT {ins.phase_ct_class}: even the symmetrical fault current saturates it "
+                                    f"(I_f·Z_b = {sym:.1f} > 20 at {b.fault_max / 1e3:.1f} kA): the secondary "
+                                    "current is distorted from the first cycle and 50P may be delayed. Check the "
+                                    "relay maker's CT requirement for instantaneous elements, or use a higher class "
+                                    "or a lower burden."))
+    return None

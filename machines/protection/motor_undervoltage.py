@@ -1,0 +1,68 @@
+"""27 undervoltage of a motor.
+
+Rule (REFERENCE 13 [P][M]): 0.75 pu of the motor's rated voltage for 2 s, riding through faults elsewhere and letting
+the motor reaccelerate; coordinate with bus transfer. The element must not trip a normal start: when the minimum
+starting voltage is near the pickup the pickup drops to 0.05 pu below it (not under 0.65 pu) or 27 must be blocked
+while starting.
+"""
+
+from __future__ import annotations
+
+from machines.protection.base import StudyContext, timed_test_point, voltage_setting
+from machines.protection.motor_basis import basis_of
+from machines.record import Check, FunctionSettings, Setting
+
+FID = "27"
+PICKUP = 0.75  #: [pu of rated voltage] (REFERENCE 13: 0.70–0.80) [P]
+PICKUP_FLOOR = 0.65  #: lowest automatic pickup [pu] [P]
+START_MARGIN = 0.05  #: pickup at least this below the minimum starting voltage [pu] [P]
+DELAY = 2.0  #: [s] (REFERENCE 13: 1–3 s) [P]
+
+
+def settings(ctx: StudyContext) -> FunctionSettings:
+    m = ctx.case.machine
+    b = basis_of(ctx)
+    vt = ctx.case.instruments.vt
+    vn = m.rated_voltage
+    checks: list[Check] = []
+    p_pu = PICKUP if b.minimum_voltage - START_MARGIN >= PICKUP else max(PICKUP_FLOOR,
+                                                                         b.minimum_voltage - START_MARGIN)
+    pickup, p_src = ctx.choose(FID, "pickup_voltage", p_pu * vn, "voltage", "V", "common-practice")
+    delay, d_src = ctx.choose(FID, "time_delay", DELAY, "time", "s", "common-practice")
+    pu = pickup / vn
+    if vt is None:
+        checks.append(Check("warn", "No VT (instruments.vt): 27 needs a voltage input; secondary values are not "
+                                    "given."))
+    t_acc = b.start_min.acceleration_time
+    if pu >= b.minimum_voltage:
+        status = "fail" if t_acc > delay else "warn"
+        checks.append(Check(status, f"The 27 pickup {pu:.2f} pu is at or above the minimum starting voltage "
+                                    f"{b.minimum_voltage:.3f} pu: it picks up during every start at that voltage "
+                                    f"({t_acc:.1f} s against a {delay:g} s delay). Block 27 while starting or lower "
+                                    "the pickup."))
+    elif pu > b.minimum_voltage - START_MARGIN:
+        checks.append(Check("warn", f"The 27 pickup {pu:.2f} pu is within 0.05 pu of the minimum starting voltage "
+                                    f"{b.minimum_voltage:.3f} pu."))
+    else:
+        checks.append(Check("ok", f"The 27 pickup {pu:.2f} pu is below the minimum starting voltage "
+                                  f"{b.minimum_voltage:.3f} pu."))
+    if pu < 0.70:
+        checks.append(Check("warn", f"The 27 pickup {pu:.2f} pu is below the usual 0.70–0.80 pu: the motor may "
+                                    "stall before 27 acts at low voltage; 51LR and 49 then protect it."))
+    if delay < 1.0:
+        checks.append(Check("warn", f"A 27 delay of {delay:g} s may trip the motor for a fault cleared elsewhere."))
+    sec = (lambda v: vt.to_secondary(v)) if vt else (lambda v: v)
+    unit_note = "" if vt else " (no VT given: primary volts)"
+    tps = [
+        timed_test_point("voltage", sec(1.05 * pickup), "V", None, applied_primary=1.05 * pickup, primary_unit="V",
+                         description="three-phase, 1.05 × pickup: must not operate" + unit_note),
+        timed_test_point("voltage", sec(0.95 * pickup), "V", delay, applied_primary=0.95 * pickup, primary_unit="V",
+                         description="step from rated to 0.95 × pickup: operates after the delay" + unit_note),
+    ]
+    s = {"pickup_voltage": voltage_setting(pickup, vt, p_src, "Pickup (line-to-line)", note=f"{pu:.2f} pu"),
+         "time_delay": Setting(delay, "s", d_src, label="Delay")}
+    basis = (f"Pickup {pu:.2f} pu for {delay:g} s: rides through faults cleared elsewhere and lets the motor "
+             f"reaccelerate; below the minimum starting voltage {b.minimum_voltage:.3f} pu so starts do not trip.")
+    return FunctionSettings(FID, "Undervoltage", s, basis,
+                            ["IEEE Std C37.96 (motor protection guide) [value from memory]", "REFERENCE 13"],
+                            checks, tps)

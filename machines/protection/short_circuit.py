@@ -1,0 +1,148 @@
+"""50P instantaneous phase overcurrent (short circuit) of a motor, and the fused-contactor case.
+
+Rule (REFERENCE 4.1):
+- Pickup 1.8 × the symmetrical locked-rotor current (upper bound of the code range): the first-cycle rms of a fully
+  offset starting current is up to √3 = 1.73 × its symmetrical value (IEC 60034-12 note: peak 1.8–2.8 ×), so 1.8
+  keeps the element quiet with no intentional delay (guidance 1.6–2.0 × [M][P]).
+- Sensitivity: the minimum phase-to-phase terminal fault current should be at least 2 × the pickup [P].
+- Fused contactor: the contactor must never break more than its rating, so 50P is out of service and every relay
+  trip is blocked above 90 % of the contactor's breaking current; the fuse clears those faults (take-over below the
+  contactor rating, UL 347 practice [F-v][P]).
+"""
+
+from __future__ import annotations
+
+from machines.protection.base import StudyContext, current_setting, timed_test_point
+from machines.protection.motor_basis import basis_of, chosen
+from machines.record import Check, FunctionSettings, Setting
+from machines.standards.fault_current import (
+    FULL_OFFSET_RMS_FACTOR, asymmetrical_rms_factor, phase_to_phase_fault_current,
+)
+
+FID = "50P"
+ASYMMETRY_MARGIN = 1.8  #: pickup / symmetrical I_LR [-] (REFERENCE 4.1: 1.6–2.0) [P]
+LOWEST_MARGIN = 1.6  #: below this a warning [-] [P]
+SENSITIVITY_RATIO = 2.0  #: minimum phase-to-phase fault / pickup [-] (REFERENCE 4.1) [P]
+BLOCK_FRACTION = 0.9  #: block trips above this × contactor breaking current [-] (REFERENCE 4.2: 10 % margin) [P]
+
+
+def block_threshold(contactor_breaking_current: float) -> float:
+    """Current above which relay trips are blocked on a fused contactor, 0.9 × its breaking current [A].
+
+    Examples
+    --------
+    >>> block_threshold(4000.0)   # REFERENCE 4.2: 3600 A
+    3600.0
+    """
+    return BLOCK_FRACTION * contactor_breaking_current
+
+
+def settings(ctx: StudyContext) -> FunctionSettings:
+    case = ctx.case
+    sup = case.supply
+    b = basis_of(ctx)
+    ct, flc = ctx.ct, b.flc
+    checks: list[Check] = []
+    fused = sup.starter == "fused-contactor"
+    enabled, e_src = ctx.choose(FID, "enabled", not fused, "boolean", "", "common-practice")
+    pickup, p_src = ctx.choose(FID, "pickup_current", ASYMMETRY_MARGIN * b.lr_high, "current", "A",
+                               "common-practice")
+    delay, d_src = ctx.choose(FID, "time_delay", 0.0, "time", "s", "common-practice")
+    half_cycle = asymmetrical_rms_factor(sup.x_over_r, 0.5 / case.machine.frequency, case.machine.frequency)
+    ratio = pickup / b.lr_high
+    if ratio <= half_cycle and delay < 0.05:
+        checks.append(Check("fail", f"50P pickup {ratio:.2f} × locked-rotor current is below the half-cycle "
+                                    f"asymmetrical factor {half_cycle:.2f} (X/R {sup.x_over_r:g}): it would trip on "
+                                    "the starting inrush."))
+    elif ratio < LOWEST_MARGIN and delay < 0.05:
+        checks.append(Check("warn", f"50P pickup is only {ratio:.2f} × the locked-rotor current with no delay; "
+                                    f"a fully offset start reaches {FULL_OFFSET_RMS_FACTOR:.2f} × in the first "
+                                    "cycle. Use 1.6–2.0 × or add 50–100 ms with DC-offset filtering."))
+    else:
+        checks.append(Check("ok", f"50P pickup {ratio:.2f} × the locked-rotor current (upper bound) clears the "
+                                  f"asymmetrical starting inrush ({half_cycle:.2f} × at half a cycle, "
+                                  f"X/R {sup.x_over_r:g})."))
+    p49, p51 = chosen(ctx, "49").get("pickup", 0.0), chosen(ctx, "51LR").get("pickup", 0.0)
+    if pickup <= max(p49, p51):
+        checks.append(Check("fail", f"50P pickup {pickup:.0f} A is not above the stall pickup {p51:.0f} A."))
+    if b.fault_min:
+        i_pp = phase_to_phase_fault_current(b.fault_min)
+        sens = i_pp / pickup
+        if sens < 1.5:
+            checks.append(Check("fail" if enabled else "warn",
+                                f"The minimum phase-to-phase fault ({i_pp / 1e3:.2f} kA) is only {sens:.2f} × the "
+                                "50P pickup: terminal faults may not be cleared instantaneously; consider 87M."))
+        elif sens < SENSITIVITY_RATIO:
+            checks.append(Check("warn", f"The minimum phase-to-phase fault is {sens:.2f} × the 50P pickup (aim ≥ 2)."))
+        else:
+            checks.append(Check("ok", f"The minimum phase-to-phase terminal fault ({i_pp / 1e3:.2f} kA) is "
+                                      f"{sens:.1f} × the 50P pickup."))
+    else:
+        sens = None
+        checks.append(Check("warn", "No minimum fault level: the 50P sensitivity cannot be checked."))
+    if delay > 0.1:
+        checks.append(Check("warn", f"A 50P delay of {delay:.2f} s is long for a short-circuit element."))
+
+    s = {
+        "enabled": Setting(bool(enabled), "", e_src, label="In service"),
+        "pickup_current": current_setting(pickup, ct, p_src, "Pickup",
+                                          note=f"{ratio:.2f} × locked-rotor current (upper bound)"),
+        "time_delay": Setting(delay, "s", d_src, label="Delay"),
+    }
+    if fused:
+        basis = _fused(ctx, s, checks, enabled, pickup, b)
+    else:
+        basis = (f"Pickup {ratio:.2f} × the symmetrical locked-rotor current {b.lr_high:.0f} A: the first-cycle rms "
+                 f"of a fully offset start is up to √3 = {FULL_OFFSET_RMS_FACTOR:.2f} ×, so no intentional delay is "
+                 "needed" + (f"; minimum phase-to-phase fault {sens:.1f} × pickup." if sens else "."))
+    chosen(ctx, FID).update(pickup=pickup, delay=delay, enabled=bool(enabled))
+    tps = [] if not enabled else [
+        timed_test_point("current", ct.to_secondary(0.9 * pickup), "A", None, applied_primary=0.9 * pickup,
+                         primary_unit="A", description="pickup test: 0.9 × pickup must not operate"),
+        timed_test_point("current", ct.to_secondary(1.2 * pickup), "A", delay if delay > 0 else 0.03,
+                         applied_primary=1.2 * pickup, primary_unit="A",
+                         description="1.2 × pickup operates instantaneously (relay's own time ≤ 30 ms)"
+                         if delay == 0 else "1.2 × pickup operates after the delay"),
+    ]
+    return FunctionSettings(FID, "Instantaneous phase overcurrent (short circuit)", s, basis,
+                            ["IEC 60034-12 (asymmetrical starting peak note)",
+                             "IEEE Std C37.96 (motor protection guide) [value from memory]",
+                             "UL 347 (fused contactors, take-over) [practice]", "REFERENCE 4.1, 4.2"],
+                            checks, tps, enabled=bool(enabled))
+
+
+def _fused(ctx: StudyContext, s: dict, checks: list[Check], enabled: bool, pickup: float, b) -> str:
+    sup = ctx.case.supply
+    if not enabled:
+        checks.append(Check("ok", "50P is out of service on a fused contactor: short circuits above the contactor's "
+                                  "breaking current are cleared by the fuses."))
+    if sup.contactor_breaking_current is None:
+        checks.append(Check("warn", "Fused contactor without supply.contactor_breaking_current: the current above "
+                                    "which relay trips must be blocked cannot be set."))
+        block = None
+    else:
+        block = block_threshold(sup.contactor_breaking_current)
+        s["trip_block_current"] = current_setting(block, ctx.ct, "common-practice",
+                                                  "Block all relay trips above",
+                                                  note="0.9 × contactor breaking current")
+        chosen(ctx, FID)["block"] = block
+        if enabled and pickup >= block:
+            checks.append(Check("fail", f"50P is in service at {pickup:.0f} A, at or above the trip block threshold "
+                                        f"{block:.0f} A: it would never act, or would ask the contactor to break "
+                                        "more than its rating if not blocked."))
+        if b.lr_high >= block:
+            checks.append(Check("fail", f"The locked-rotor current {b.lr_high:.0f} A reaches the trip block threshold "
+                                        f"{block:.0f} A: the contactor cannot interrupt a stalled motor."))
+    if sup.fuse_rating is None or sup.contactor_breaking_current is None:
+        checks.append(Check("warn", "The fuse take-over cannot be judged: give supply.fuse_rating and "
+                                    "supply.contactor_breaking_current, and check on the fuse maker's minimum-melt "
+                                    "curve that the fuse takes over below the block threshold."))
+    else:
+        checks.append(Check("ok", f"Fuse {sup.fuse_rating:.0f} A with a contactor breaking "
+                                  f"{sup.contactor_breaking_current / 1e3:.1f} kA: confirm on the fuse's minimum-melt "
+                                  f"curve that it melts faster than the relay's curves above {block:.0f} A."))
+    return ("Fused contactor: the contactor may not be asked to break more than its rating, so 50P is "
+            + ("out of service" if not enabled else "in service below the block threshold")
+            + (f" and every relay trip is blocked above {block:.0f} A (0.9 × {sup.contactor_breaking_current:.0f} A); "
+               if block else "; ")
+            + "the fuses clear faults above that.")
