@@ -44,10 +44,11 @@ def register() -> bool:
         if all(os.path.isfile(p) for p in paths.values()):
             for name, path in paths.items():
                 pdfmetrics.registerFont(TTFont(name, path))
-            addMapping(FALLBACK, 0, 0, FALLBACK)
-            addMapping(FALLBACK, 1, 0, FALLBACK_BOLD)
+            # the last mapping of a name decides how a <font name=...> tag reads it: regular, resp. bold
             addMapping(FALLBACK, 0, 1, FALLBACK)
             addMapping(FALLBACK, 1, 1, FALLBACK_BOLD)
+            addMapping(FALLBACK, 0, 0, FALLBACK)
+            addMapping(FALLBACK, 1, 0, FALLBACK_BOLD)
             have_fallback = True
             break
     return have_fallback
@@ -85,8 +86,8 @@ def plain(text: object) -> str:
     return "".join(ch if ch.isprintable() or ch == "\n" else " " for ch in s)
 
 
-def markup(text: object) -> str:
-    """Paragraph markup that prints ``text`` exactly as written.
+def markup(text: object, bold: bool = False) -> str:
+    """Paragraph markup that prints ``text`` exactly as written (``bold``: the paragraph is set in bold).
 
     >>> markup("M-101 <spare> & co")
     'M-101 &lt;spare&gt; &amp; co'
@@ -103,17 +104,17 @@ def markup(text: object) -> str:
     for ch in s:
         is_main = _in_main(ch)
         if is_main != run_main and run:
-            parts.append(_piece("".join(run), run_main, has_fallback))
+            parts.append(_piece("".join(run), run_main, has_fallback, bold))
             run = []
         run_main = is_main
         run.append(ch)
     if run:
-        parts.append(_piece("".join(run), run_main, has_fallback))
+        parts.append(_piece("".join(run), run_main, has_fallback, bold))
     return "".join(parts)
 
 
-def _piece(text: str, main: bool, has_fallback: bool) -> str:
+def _piece(text: str, main: bool, has_fallback: bool, bold: bool) -> str:
     body = escape(text).replace("\n", "<br/>")
     if main or not has_fallback:
         return body
-    return f'<font name="{FALLBACK}">{body}</font>'
+    return f'<font name="{FALLBACK_BOLD if bold else FALLBACK}">{body}</font>'

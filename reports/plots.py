@@ -246,13 +246,13 @@ def render(d, width: float, height: float):
     if not xs:
         xs, ys = [1.0, 10.0], [1.0, 10.0]
     x_step = y_step = None
-    if d.x_range:
+    if _usable_range(d.x_range, log_x):
         x0, x1 = float(d.x_range[0]), float(d.x_range[1])
     elif log_x:
         x0, x1 = _log_range(min(xs), max(xs))
     else:
         x0, x1, x_step = _linear_range(min(xs), max(xs), include_zero=rx)
-    if d.y_range:
+    if _usable_range(d.y_range, log_y):
         y0, y1 = float(d.y_range[0]), float(d.y_range[1])
     elif log_y:
         y0, y1 = _log_range(min(ys), max(ys))
@@ -367,6 +367,14 @@ def render(d, width: float, height: float):
             drawing.add(String(xpos + 27, y, plain(label), fontName=SANS, fontSize=FONT_SIZE))
         y -= 12.0
     return drawing
+
+
+def _usable_range(r, log: bool) -> bool:
+    """A given axis range that can be drawn (else the range is taken from the data)."""
+    if not r or len(r) != 2:
+        return False
+    lo, hi = float(r[0]), float(r[1])
+    return math.isfinite(lo) and math.isfinite(hi) and hi > lo and (lo > 0 or not log)
 
 
 def _inside(x: float, y: float, axes: Axes) -> bool:

@@ -20,7 +20,7 @@ from functools import lru_cache, partial
 from machines.errors import InputError, one_line
 from machines.notices import SAFETY_NOTICE
 from reports import tables
-from reports.fonts import SANS, SANS_BOLD, SANS_ITALIC, markup, plain, register
+from reports.fonts import SANS, SANS_BOLD, SANS_BOLD_ITALIC, SANS_ITALIC, markup, plain, register
 from reports.plots import ACCENT_HEX, render
 
 PAGE_SIZES = ("A4", "letter")
@@ -94,14 +94,14 @@ class _Styles:
 def _p(text: object, style) -> object:
     from reportlab.platypus import Paragraph
 
-    return Paragraph(markup(text), style)
+    return Paragraph(markup(text, bold=style.fontName in (SANS_BOLD, SANS_BOLD_ITALIC)), style)
 
 
 def _heading(text: str, st: _Styles) -> list:
     from reportlab.platypus import CondPageBreak, HRFlowable, Paragraph
 
     rule = HRFlowable(width="100%", thickness=0.8, color=st.accent, spaceBefore=0, spaceAfter=4)
-    return [CondPageBreak(90), Paragraph(markup(text), st.h1), rule]
+    return [CondPageBreak(90), Paragraph(markup(text, bold=True), st.h1), rule]
 
 
 def _table(rows, widths, style_cmds, repeat: int = 0):
@@ -127,7 +127,7 @@ def _identification(record, st: _Styles, width: float) -> list:
         out.append(_p(rows["Description"], st.description))
 
     def box(label: str, bold: bool = False):
-        value = markup(rows[label]) or "&nbsp;"
+        value = markup(rows[label], bold=bold) or "&nbsp;"
         return [Paragraph(label.upper(), st.label),
                 Paragraph(f"<b>{value}</b>" if bold else value, st.value)]
 
@@ -409,7 +409,8 @@ def build_sheet(record, page_size: str | None = None) -> bytes:
         buf, pagesize=size, invariant=True, leftMargin=_MARGIN_X, rightMargin=_MARGIN_X, topMargin=_MARGIN_TOP,
         bottomMargin=_MARGIN_BOTTOM, title=f"{plain(record.tag)} protection settings, revision {rev}",
         author=plain(sheet.get("prepared_by") or ""), subject=f"Protection settings sheet for {plain(record.tag)}",
-        keywords=keywords(record), creator=f"relaywright {_version()}".strip(), lang="en")
+        keywords=keywords(record), creator=f"relaywright {_version()}".strip(), lang="en",
+        initialFontName=SANS, initialFontSize=8.5)
     frame = Frame(_MARGIN_X, _MARGIN_BOTTOM, width, frame_h, leftPadding=0, rightPadding=0, topPadding=0,
                   bottomPadding=0, id="body")
     doc.addPageTemplates([PageTemplate(id="sheet", frames=[frame], pagesize=size)])

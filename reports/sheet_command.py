@@ -50,6 +50,17 @@ def signing_password(key: Path) -> str:
     return getpass.getpass(f"Password for {key}: ")
 
 
+def _warn_missing_glyphs(record) -> None:
+    """Say on stderr which characters of the sheet data no font on this machine can print (they show as boxes)."""
+    from reports.fonts import missing_glyphs
+
+    for key in ("tag", "description", "site", "prepared_by", "checked_by", "approved_by"):
+        chars = missing_glyphs(str((record.sheet or {}).get(key) or ""))
+        if chars:
+            print(f"warning: sheet.{key}: no font here has the character(s) {' '.join(chars)}; they print as "
+                  "empty boxes", file=sys.stderr)
+
+
 def make_sheet(file: Path, output: Path | None = None, page_size: str | None = None, sign: Path | None = None) -> int:
     """Write the sheet; print its path. Exit code 0, or 1 when a check failed (the sheet is still written)."""
     from machines.files import load_case, write_atomic
@@ -69,6 +80,7 @@ def make_sheet(file: Path, output: Path | None = None, page_size: str | None = N
     case, warnings = load_case(file)
     record = run_study(case, warnings)
     pdf = build_sheet(record, page_size)
+    _warn_missing_glyphs(record)
     if sign is not None:
         from reports.signing import sign_pdf
 

@@ -182,3 +182,53 @@ def test_build_is_fast():
     elapsed = time.perf_counter() - start
     # target well under 100 ms on a 2-core machine (STACK.md); the bound leaves room for a busy test machine
     assert elapsed < 0.5, elapsed
+
+
+# ---------------------------------------------------------------------------------------------------- drawings
+
+def _drawing(kind="time-current", log=True, points=((1.0, 1.0), (10.0, 10.0)), **kw):
+    from machines.record import Drawing, Series
+
+    return Drawing(kind=kind, title="t", x_label="x", y_label="y", log_x=log, log_y=log,
+                   series=[Series("s", list(points), kw.pop("style", "line"))], **kw)
+
+
+@pytest.mark.parametrize("drawing", [
+    _drawing(points=[(0.0, 1.0), (-1.0, 5.0), (2.0, 3.0), (50.0, 0.2)]),  # zero and negative on log axes: left out
+    _drawing(points=[(float("nan"), 1.0), (2.0, float("inf")), (3.0, 4.0), (30.0, 0.4)]),  # non-finite: left out
+    _drawing(points=[]),  # nothing to draw: an empty frame
+    _drawing(points=[(5.0, 5.0)], style="points"),  # one point
+    _drawing(points=[(1.0, 2.0), (100.0, 2.0)], x_range=(0.0, 10.0)),  # a log range from zero: taken from the data
+    _drawing(log=False, points=[(3.0, 3.0), (3.0, 3.0)]),  # no extent on linear axes
+    _drawing(points=[(1e-3, 1e5), (1e5, 1e-3)], x_range=(1.0, 100.0), y_range=(1.0, 100.0)),  # clipped both ends
+    _drawing(kind="r-x", log=False, points=[(-5.0, -5.0), (5.0, 8.0)]),  # R-X without circles
+    _drawing(points=[(float(k + 1), float(k + 1)) for k in range(500)], style="step"),
+], ids=["non-positive", "non-finite", "empty", "one-point", "log-range-from-zero", "flat", "clipped", "rx-lines",
+        "long-step"])
+def test_odd_drawings_still_render(drawing):
+    from reports.plots import render
+
+    g = render(drawing, 500, 300)
+    assert g.width == 500
+    record = motor_record()
+    record.drawings = [drawing]
+    assert build_sheet(record)[:5] == b"%PDF-"
+
+
+def test_many_series_get_distinct_pens():
+    from reports.plots import pens
+
+    styles = ["line", "dashed", "dotted", "points", "step"] * 3
+    drawn = [(p.color, p.dash and tuple(p.dash), p.marker, p.line) for p in pens(styles)]
+    assert len(set(drawn)) == len(drawn)
+
+
+def test_clipping_keeps_the_inside_part():
+    from reports.plots import Axes, clip_polyline
+
+    # a line y = x from 0.01 to 1000 on a log box 1..100: the part from (1, 1) to (100, 100) remains
+    (piece,) = clip_polyline([(0.01, 0.01), (1000.0, 1000.0)], Axes(1.0, 100.0, 1.0, 100.0, True, True))
+    assert piece[0] == pytest.approx((1.0, 1.0)) and piece[-1] == pytest.approx((100.0, 100.0))
+    # leaving and re-entering the box gives two pieces
+    pieces = clip_polyline([(0.5, 0.5), (2.0, 0.5), (0.5, 0.8)], Axes(0.0, 1.0, 0.0, 1.0, False, False))
+    assert len(pieces) == 2
