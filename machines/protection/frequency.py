@@ -1,0 +1,187 @@
+"""81U / 81O frequency protection of a generator, from the maker's off-frequency bands.
+
+The guide (IEEE C37.106; REFERENCE 8.1, 8.2): turbine limits are bands with a time allowance accumulated over the
+turbine's life. One trip stage sits at the edge of each restricted band, with a delay that lets a single event use
+only a small fraction of the band's allowance; underfrequency stages sit below the system's lowest load-shedding
+stage and time out after the shedding, so that the shedding programme acts first. Without maker bands a steam or
+gas turbine gets conservative stages, labelled as such, and a warning.
+"""
+
+from __future__ import annotations
+
+import math
+
+from machines.errors import InputError
+from machines.protection.base import StudyContext, timed_test_point
+from machines.record import Check, FunctionSettings, Setting
+from machines.standards.frequency import band_consumption, band_containing
+
+EVENT_FRACTION = 0.10  #: one event may use at most 10 % of a band's allowance (common practice)
+LS_FREQUENCY_MARGIN = 0.1  #: [Hz] generator stages at least this far below the lowest shedding stage (common practice)
+LS_TIME_MARGIN = 0.3  #: [s] generator stages at least this much slower than the slowest shedding stage (common practice)
+MINIMUM_DELAY = 0.5  #: [s] shortest generator frequency-stage delay (common practice, no published source)
+MAX_STAGES = 4  #: stages a typical relay offers per direction
+#: Conservative stages without maker bands, (frequency in pu of nominal, delay [s]); common practice, no published
+#: source: well inside typical turbine restricted regions and slow enough to ride through system swings.
+CONSERVATIVE_UNDER = ((0.975, 30.0), (0.96, 1.0))
+CONSERVATIVE_OVER = ((1.025, 30.0), (1.04, 1.0))
+TURBINES = ("steam-turbine", "gas-turbine")
+PROBE = 0.05  #: [Hz] test-point offset beyond a stage
+CONTINUOUS = 1e7  #: [s] a band allowance this long is continuous operation
+EDGE = 1e-6  #: [Hz] a stage at a band edge times in the band beyond it
+
+
+def _band_stages(bands, f0: float, under: bool) -> list[dict]:
+    """One stage per restricted band beyond nominal: frequency at the band's inner edge, delay a fraction of its
+    allowance (prohibited bands: the minimum delay)."""
+    side = [b for b in bands if (b.high <= f0 + 1e-9 if under else b.low >= f0 - 1e-9)]
+    side.sort(key=lambda b: -b.high if under else b.low)
+    stages = []
+    for b in side:
+        f = b.high if under else b.low
+        if b.allowed >= CONTINUOUS:
+            continue
+        stages.append({"frequency": f, "time_delay": max(EVENT_FRACTION * b.allowed, MINIMUM_DELAY)})
+    return stages
+
+
+def _coordinate(stages: list[dict], bands, ls, notes: list[str]) -> list[dict]:
+    """Move underfrequency stages below and after the load shedding; delays from the band the stage lands in."""
+    if not ls:
+        return stages
+    f_ls = min(s.frequency for s in ls) - LS_FREQUENCY_MARGIN
+    t_ls = max(s.time_delay for s in ls) + LS_TIME_MARGIN
+    out = []
+    for st in stages:
+        f, t = st["frequency"], st["time_delay"]
+        if f > f_ls:
+            notes.append(f"stage at {f:.4g} Hz moved to {f_ls:.4g} Hz, below the lowest load-shedding stage")
+            f = f_ls
+            i = band_containing(f - EDGE, bands)
+            if i is not None:
+                t = max(EVENT_FRACTION * bands[i].allowed, MINIMUM_DELAY)
+        out.append({"frequency": f, "time_delay": max(t, t_ls)})
+    merged: dict[float, float] = {}
+    for st in out:
+        key = round(st["frequency"], 6)
+        merged[key] = min(merged.get(key, math.inf), st["time_delay"])
+    return [{"frequency": f, "time_delay": t} for f, t in sorted(merged.items(), reverse=True)]
+
+
+def _overrides(ctx: StudyContext, fid: str, stages: list[dict], source: str) -> tuple[list[dict], str]:
+    out, src = [], source
+    for i, st in enumerate(stages, start=1):
+        f, fs = ctx.choose(fid, f"stage{i}_frequency", st["frequency"], "frequency", "Hz", source)
+        t, ts = ctx.choose(fid, f"stage{i}_time_delay", st["time_delay"], "time", "s", source)
+        if "override" in (fs, ts):
+            src = "override"
+        out.append({"frequency": f, "time_delay": t})
+    return out, src
+
+
+def _function(ctx: StudyContext, under: bool) -> FunctionSettings:
+    case = ctx.case
+    m, s = case.machine, case.supply
+    f0 = m.frequency
+    fid = "81U" if under else "81O"
+    bands = list(m.frequency_limits)
+    checks: list[Check] = []
+    notes: list[str] = []
+    stages = _band_stages(bands, f0, under)
+    if stages:
+        source = "maker-data"
+        how = (f"one stage at the inner edge of each of the maker's restricted bands, delay {EVENT_FRACTION:.0%} of "
+               f"the band's accumulated allowance (at least {MINIMUM_DELAY:g} s)")
+    else:
+        source = "common-practice"
+        table = CONSERVATIVE_UNDER if under else CONSERVATIVE_OVER
+        stages = [{"frequency": k * f0, "time_delay": t} for k, t in table]
+        how = "conservative stages labelled as such (common practice, no published source)"
+        if m.prime_mover in TURBINES:
+            checks.append(Check("warn", f"No maker's off-frequency bands for this {m.prime_mover.replace('-', ' ')}: "
+                                        f"conservative stages are proposed; enter machine.frequency_limits from "
+                                        f"the turbine maker (blade-resonance limits)."))
+        else:
+            checks.append(Check("ok", f"No maker's bands: a {m.prime_mover.replace('-', ' ')} has no blade-"
+                                      f"resonance limits; the stages protect the machine and its auxiliaries."))
+    if under:
+        stages = _coordinate(stages, bands, s.load_shedding_stages, notes)
+    if len(stages) > MAX_STAGES:
+        checks.append(Check("warn", f"{len(stages)} stages proposed; a relay usually offers {MAX_STAGES}: the "
+                                    f"{len(stages) - MAX_STAGES} furthest from nominal are dropped and left to the "
+                                    f"band accumulator."))
+        stages = stages[:MAX_STAGES]
+    stages, source = _overrides(ctx, fid, stages, source)
+    for i, st in enumerate(stages, start=1):
+        f, t = st["frequency"], st["time_delay"]
+        if (under and f >= f0) or (not under and f <= f0) or t < 0:
+            raise InputError(f"overrides.{fid}.stage{i}_frequency", f"expected a frequency {'below' if under else 'above'} "
+                                                                   f"{f0:g} Hz and a delay ≥ 0, got {f:g} Hz / {t:g} s")
+        j = band_containing(f - EDGE if under else f + EDGE, bands)
+        if j is not None:
+            use = band_consumption(t, bands[j].allowed)
+            b = bands[j]
+            if bands[j].allowed <= 0.0:
+                checks.append(Check("warn", f"Stage {i} ({f:.4g} Hz, {t:.3g} s) times inside the maker's prohibited "
+                                            f"band {b.low:.4g}–{b.high:.4g} Hz: shorten the delay to the minimum."))
+            elif use <= 0.25:
+                checks.append(Check("ok", f"Stage {i} ({f:.4g} Hz, {t:.3g} s) uses at most {use:.1%} of the "
+                                          f"{b.low:.4g}–{b.high:.4g} Hz band's allowance ({b.allowed:.4g} s) per "
+                                          f"event."))
+            else:
+                checks.append(Check("warn", f"Stage {i} ({f:.4g} Hz, {t:.3g} s) lets one event use {use:.0%} of the "
+                                            f"{b.low:.4g}–{b.high:.4g} Hz band's allowance ({b.allowed:.4g} s)."))
+    if under and s.load_shedding_stages:
+        f_ls = min(x.frequency for x in s.load_shedding_stages)
+        t_ls = max(x.time_delay for x in s.load_shedding_stages)
+        for i, st in enumerate(stages, start=1):
+            if st["frequency"] >= f_ls or st["time_delay"] <= t_ls:
+                checks.append(Check("fail", f"Stage {i} ({st['frequency']:.4g} Hz, {st['time_delay']:.3g} s) is not "
+                                            f"below and after the load shedding (lowest stage {f_ls:.4g} Hz, "
+                                            f"slowest {t_ls:.3g} s): the unit would trip before the shedding "
+                                            f"programme acts."))
+        if all(st["frequency"] < f_ls and st["time_delay"] > t_ls for st in stages):
+            checks.append(Check("ok", f"All stages are below the lowest load-shedding stage ({f_ls:.4g} Hz) and "
+                                      f"slower than the slowest ({t_ls:.3g} s)."))
+    elif under:
+        checks.append(Check("warn", "No load-shedding stages given (supply.load_shedding_stages): coordination with "
+                                    "the system's shedding programme is not checked."))
+    rocof = ctx.extras.get("initial_rocof")
+    if under and rocof is not None and rocof < 0 and stages:
+        f1 = stages[0]["frequency"]
+        checks.append(Check("ok", f"Loss of this unit on the islanded system: initial RoCoF {rocof:.3g} Hz/s "
+                                  f"(swing equation); at that rate the frequency would reach {f1:.4g} Hz in "
+                                  f"{(f0 - f1) / -rocof:.3g} s unless the load shedding arrests it."))
+    if bands:
+        checks.append(Check("ok", "Enable the relay's band accumulators (one per maker band) with an alarm at "
+                                  "50–80 % of each allowance; the accumulated life use, not the stages, protects "
+                                  "the blades from repeated excursions."))
+    tests = []
+    for i, st in enumerate(stages, start=1):
+        f, t = st["frequency"], st["time_delay"]
+        beyond, inside = (f - PROBE, f + PROBE) if under else (f + PROBE, f - PROBE)
+        tests.append(timed_test_point("frequency", beyond, "Hz", t, description=f"stage {i}: {PROBE:g} Hz beyond "
+                                                                                  f"the setting, rated voltage"))
+    if stages:
+        f = stages[0]["frequency"]
+        tests.append(timed_test_point("frequency", f + PROBE if under else f - PROBE, "Hz", None,
+                                      description=f"stage 1: {PROBE:g} Hz inside the setting: must not trip"))
+    values = {"stages": Setting(stages, "", source, label="Stages (frequency / delay)",
+                                note="; ".join(notes))}
+    basis_text = (f"Stages {'below' if under else 'above'} {f0:g} Hz: {how}."
+                  + (" Underfrequency stages sit below and after the system's load-shedding stages (margins "
+                     f"{LS_FREQUENCY_MARGIN:g} Hz and {LS_TIME_MARGIN:g} s)." if under else "")
+                  + " Confirm against the grid code's frequency ride-through requirements.")
+    title = "Underfrequency" if under else "Overfrequency"
+    return FunctionSettings(fid, title, values, basis_text, references=["IEEE C37.106", "IEEE C37.102"],
+                            checks=checks, test_points=tests)
+
+
+def underfrequency(ctx: StudyContext) -> FunctionSettings:
+    """81U stages."""
+    return _function(ctx, under=True)
+
+
+def overfrequency(ctx: StudyContext) -> FunctionSettings:
+    """81O stages."""
+    return _function(ctx, under=False)

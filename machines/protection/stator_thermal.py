@@ -1,0 +1,98 @@
+"""49 stator thermal protection of a generator: IEC 60255-149 replica against the armature's short-time capability.
+
+The replica's pickup k·I_r is a little above rated current; its heating time constant is the largest for which the
+replica, starting hot from rated current, trips within the armature's short-time capability at every point the
+standard gives (IEEE C50.13: 226 % 10 s … 116 % 120 s, i.e. (I² − 1)·t ≈ 41 s; IEC 60034-1: 150 % for 30 s).
+"""
+
+from __future__ import annotations
+
+import math
+
+from machines.protection.base import StudyContext, current_setting, timed_test_point
+from machines.record import Check, FunctionSettings, Setting
+from machines.standards.generator_capability import ARMATURE_POINTS, armature_capability_constant
+from machines.standards.thermal_replica import thermal_level, thermal_operate_time
+
+FID = "49"
+PICKUP = 1.05  #: k: pickup at 105 % of rated current (REFERENCE 2.4; common practice)
+ALARM_LEVEL = 0.95  #: alarm at 95 % of the trip level (REFERENCE 2.4: 80–95 %; common practice)
+TEST_MULTIPLES = (1.3, 1.54, 2.26)  #: test currents, pu of rated (on the C50.13 capability points)
+
+
+def fitted_time_constant(k: float, points) -> float:
+    """Largest τ [s] for which the hot replica (prior current 1 pu) trips within each (I [pu], t [s]) point.
+
+    Notes
+    -----
+    τ = min over the points of t / ln[(I² − 1)/(I² − k²)], the hot operate time of IEC 60255-149 solved for τ.
+
+    >>> round(fitted_time_constant(1.05, ((1.16, 120.0),)), 1)
+    341.1
+    """
+    return min(t / math.log((i * i - 1.0) / (i * i - k * k)) for i, t in points if i > k)
+
+
+def settings(ctx: StudyContext) -> FunctionSettings:
+    """49: pickup, heating and cooling time constants, checked against the armature's short-time capability."""
+    basis, case = ctx.extras["generator"], ctx.case
+    ir, ct = basis.rated_current, basis.ct
+    practice = case.study.practice
+    points = ARMATURE_POINTS[practice]
+    checks: list[Check] = []
+    pickup, p_src = ctx.choose(FID, "pickup_current", PICKUP * ir, "current", "A", "common-practice")
+    k = pickup / ir
+    if k <= 1.0:
+        checks.append(Check("fail", f"Pickup {k:.3g} pu is not above rated current: the replica trips at rated "
+                                    f"load."))
+        tau0 = 600.0
+    else:
+        tau0 = fitted_time_constant(k, points)
+    tau, tau_src = ctx.choose(FID, "heating_time_constant", tau0, "time", "s", "standard")
+    tauc, tauc_src = ctx.choose(FID, "cooling_time_constant", tau, "time", "s",
+                                "common-practice" if tau_src != "override" else "override")
+    alarm, a_src = ctx.choose(FID, "alarm_level", ALARM_LEVEL, "per_unit", "", "common-practice")
+    const = armature_capability_constant(practice)
+    for i, t_cap in points:
+        t_hot = thermal_operate_time(i * ir, pickup, tau, ir)
+        if t_hot <= t_cap * (1 + 1e-6):
+            checks.append(Check("ok", f"At {i:.3g} pu the replica trips in {t_hot:.3g} s from rated load, within "
+                                      f"the armature's {t_cap:.3g} s."))
+        else:
+            checks.append(Check("fail", f"At {i:.3g} pu the replica trips in {t_hot:.3g} s from rated load, later "
+                                        f"than the armature's short-time capability {t_cap:.3g} s."))
+    level_rated = thermal_level(ir, pickup, tau, 20.0 * tau)
+    if level_rated < alarm:
+        checks.append(Check("ok", f"At rated current the replica settles at {level_rated:.1%}, below the alarm "
+                                  f"level {alarm:.0%}."))
+    else:
+        checks.append(Check("warn", f"At rated current the replica settles at {level_rated:.1%}, at or above the "
+                                    f"alarm level {alarm:.0%}: the alarm will stand in normal service."))
+    checks.append(Check("ok", "Use RTDs in the stator slots where fitted: the replica does not see loss of cooling."))
+    values = {
+        "pickup_current": current_setting(pickup, ct, p_src, "Pickup k·I_r", f"{k:.3g} × rated current"),
+        "heating_time_constant": Setting(tau, "s", tau_src, label="Heating time constant",
+                                         note=f"fitted to the {practice} armature short-time capability "
+                                              f"((I²−1)·t ≈ {const:.3g} s)" if tau_src != "override" else ""),
+        "cooling_time_constant": Setting(tauc, "s", tauc_src, label="Cooling time constant",
+                                         note="equal to heating while running; ask the maker for standstill"),
+        "alarm_level": Setting(alarm, "pu", a_src, label="Alarm level (fraction of trip level)"),
+    }
+    tests = []
+    for mult in TEST_MULTIPLES:
+        i_a = mult * ir
+        tests.append(timed_test_point("phase current", ct.to_secondary(i_a), "A",
+                                      thermal_operate_time(i_a, pickup, tau, ir), applied_primary=i_a,
+                                      primary_unit="A", initial_state="hot: steady at rated current",
+                                      description=f"{mult:g} × rated from rated load"))
+    i_a = 2.0 * ir
+    tests.append(timed_test_point("phase current", ct.to_secondary(i_a), "A",
+                                  thermal_operate_time(i_a, pickup, tau), applied_primary=i_a, primary_unit="A",
+                                  initial_state="cold: replica reset", description="2 × rated from cold"))
+    basis_text = (f"IEC 60255-149 thermal replica with pickup {k:.3g} × rated current; the heating time constant "
+                  f"{tau:.4g} s is the largest for which the replica, hot from rated load, trips within the "
+                  f"{practice} armature short-time capability at each of its points. Cooling constant equal to "
+                  f"heating while the machine runs.")
+    return FunctionSettings(FID, "Stator thermal overload", values, basis_text,
+                            references=["IEC 60255-149", "IEEE C50.13" if practice == "IEEE" else "IEC 60034-1"],
+                            checks=checks, test_points=tests)

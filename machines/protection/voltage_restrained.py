@@ -1,0 +1,130 @@
+"""51V voltage-restrained overcurrent: system backup for faults the generator feeds.
+
+The guide (REFERENCE 9.4): pickup ≈ 150 % of rated current at rated voltage (IEEE C37.102), reduced in proportion
+to the terminal voltage down to 25 % of the setting (linear restraint); inverse-time, graded above the slowest
+downstream protection. The check that matters: with the field not forced, a sustained fault is fed with only
+E/X_d, so the restrained pickup at the fault's voltage must stay below that current with margin (REFERENCE 9.6
+shows a setting that fails it).
+"""
+
+from __future__ import annotations
+
+from machines.errors import InputError
+from machines.protection.base import StudyContext, current_setting, timed_test_point
+from machines.record import Check, FunctionSettings, Setting
+from machines.standards.generator_capability import restrained_pickup
+from machines.standards.inverse_time import curve_constants, inverse_operate_time, time_multiplier_for
+
+FID = "51V"
+PICKUP = 1.5  #: [pu of rated current] at rated voltage (REFERENCE 9.4, IEEE C37.102; value from memory)
+FLOOR = 0.25  #: restraint floor, fraction of the pickup (REFERENCE 9.4, Gers & Holmes §5.8)
+TARGET_TIME = 1.0  #: [s] at the transient terminal-fault current, fully restrained (common practice)
+MARGIN = 2.0  #: sustained fault current ≥ 2 × restrained pickup (REFERENCE 9.4 [derived])
+CHECK_VOLTAGE = 0.0  #: [pu] terminal voltage of the fault checked: a terminal fault (restraint at its floor)
+MIN_PICKUP = 1.25  #: [pu] below this the element may trip on overload near rated voltage (common practice)
+TEST_MULTIPLES = (2.0, 3.0, 5.0)
+
+
+def sustained_reach(pickup_pu: float, floor: float, xd: float) -> float:
+    """Largest external reactance X_e [pu] for which the sustained current E/(X_d + X_e) still exceeds the
+    restrained pickup at the terminal voltage X_e/(X_d + X_e) (E = 1 pu, no field forcing); 0 if none.
+
+    The margin I − pickup falls monotonically with X_e, so bisection finds the crossing.
+
+    >>> round(sustained_reach(1.5, 0.25, 1.8), 4)   # 1/1.5 in the proportional part of the restraint
+    0.6667
+    """
+    def margin(xe: float) -> float:
+        return 1.0 / (xd + xe) - restrained_pickup(pickup_pu, xe / (xd + xe), floor)
+
+    if margin(0.0) <= 0.0:
+        return 0.0
+    lo, hi = 0.0, 10.0
+    if margin(hi) > 0.0:
+        return hi
+    for _ in range(60):
+        mid = 0.5 * (lo + hi)
+        lo, hi = (mid, hi) if margin(mid) > 0.0 else (lo, mid)
+    return lo
+
+
+def settings(ctx: StudyContext) -> FunctionSettings:
+    """51V: pickup, restraint, curve and time multiplier, with the fault-current decrement check."""
+    basis, case = ctx.extras["generator"], ctx.case
+    ir, ct = basis.rated_current, basis.ct
+    checks: list[Check] = []
+    pickup, p_src = ctx.choose(FID, "pickup_current", PICKUP * ir, "current", "A", "standard")
+    floor, f_src = ctx.choose(FID, "restraint_floor", FLOOR, "per_unit", "", "standard")
+    if not 0.0 < floor <= 1.0:
+        raise InputError("overrides.51V.restraint_floor", f"expected a fraction of the pickup from 0 to 1, got "
+                                                          f"{floor:g}")
+    curve0 = "IEEE-VI" if case.study.practice == "IEEE" else "IEC-VI"
+    curve, c_src = ctx.choose(FID, "curve", curve0, "text", "", "common-practice")
+    constants = curve_constants(curve)
+    key = "time_dial" if constants.family == "IEEE" else "time_multiplier"
+    m_target = basis.transient_fault_current / (floor * pickup)
+    tms0 = time_multiplier_for(TARGET_TIME, m_target, curve) if m_target > 1.0 else 1.0
+    tms, t_src = ctx.choose(FID, key, tms0, "per_unit", "", "common-practice")
+    v_check, v_src = ctx.choose(FID, "check_voltage", CHECK_VOLTAGE, "per_unit", "", "common-practice")
+
+    i_sus = basis.sustained_fault_current
+    p_fault = restrained_pickup(pickup, v_check, floor)
+    ratio = i_sus / p_fault
+    text = (f"At {v_check:.2g} pu terminal voltage the restrained pickup is {p_fault:.4g} A; the sustained fault "
+            f"current without field forcing is E/X_d = {i_sus:.4g} A ({i_sus / ir:.4g} pu), ratio {ratio:.3g}")
+    if ratio >= MARGIN:
+        checks.append(Check("ok", text + f" ≥ {MARGIN:g}."))
+    elif ratio > 1.0:
+        checks.append(Check("warn", text + f", less than the margin {MARGIN:g}: operation for a sustained fault "
+                                           f"relies on field forcing or the transient current; confirm the exciter."))
+    else:
+        checks.append(Check("fail", text + ": the pickup is above the sustained fault current, so the element "
+                                           "would not operate for a sustained fault; lower the pickup, use "
+                                           "voltage-controlled mode, or show that the exciter forces the field."))
+    reach = sustained_reach(pickup / ir, floor, ctx.case.machine.xd)
+    if reach > 0.0:
+        checks.append(Check("ok", f"Without field forcing the sustained current exceeds the restrained pickup for "
+                                  f"three-phase faults behind up to {reach:.3g} pu of external reactance (machine "
+                                  f"base); a step-up transformer is typically 0.08–0.15 pu."))
+    if pickup < MIN_PICKUP * ir:
+        checks.append(Check("warn", f"Pickup {pickup / ir:.3g} pu at rated voltage is below {MIN_PICKUP:g} pu: the "
+                                    f"element may trip on overload at near-rated voltage."))
+    if ratio > 1.0:
+        t_sus = inverse_operate_time(ratio, curve, tms)
+        checks.append(Check("ok" if t_sus < 30.0 else "warn",
+                            f"Operate time at the sustained fault current, fully restrained: {t_sus:.3g} s."))
+    checks.append(Check("ok", "Coordinate the operate time with the slowest downstream backup protection (grading "
+                              "margin 0.2–0.4 s); the time multiplier here gives "
+                              f"{TARGET_TIME:g} s at the transient terminal-fault current."))
+    values = {
+        "pickup_current": current_setting(pickup, ct, p_src, "Pickup at rated voltage",
+                                          f"{pickup / ir:.3g} pu of rated current"),
+        "curve": Setting(curve, "", c_src, label="Curve", note=constants.name),
+        key: Setting(tms, "", t_src, label="Time dial" if key == "time_dial" else "Time multiplier",
+                     note=f"{TARGET_TIME:g} s at E/X'd with the restraint at its floor" if t_src != "override"
+                     else ""),
+        "restraint_floor": Setting(floor, "pu", f_src, label="Restraint floor (fraction of pickup)",
+                                   note="pickup × V/V_rated, not below this"),
+        "check_voltage": Setting(v_check, "pu", v_src, label="Fault voltage for the decrement check",
+                                 note="study assumption, not a relay setting"),
+    }
+    tests = []
+    for mult in TEST_MULTIPLES:
+        i_a = mult * pickup
+        tests.append(timed_test_point("phase current", ct.to_secondary(i_a), "A",
+                                      inverse_operate_time(mult, curve, tms), applied_primary=i_a,
+                                      primary_unit="A", initial_state="rated voltage applied",
+                                      description=f"{mult:g} × pickup at rated voltage"))
+    half = restrained_pickup(pickup, 0.5, floor)
+    tests.append(timed_test_point("phase current", ct.to_secondary(2.0 * half), "A",
+                                  inverse_operate_time(2.0, curve, tms), applied_primary=2.0 * half,
+                                  primary_unit="A", initial_state="50 % voltage applied",
+                                  description="2 × the restrained pickup at 50 % voltage"))
+    basis_text = (f"Voltage-restrained overcurrent, {pickup / ir:.3g} pu at rated voltage, pickup proportional to "
+                  f"voltage down to {floor:.0%} of the setting; {constants.name} with the time multiplier giving "
+                  f"{TARGET_TIME:g} s at the transient terminal-fault current. Checked against the sustained fault "
+                  f"current E/X_d (no field forcing) with margin {MARGIN:g}.")
+    return FunctionSettings(FID, "Voltage-restrained overcurrent", values, basis_text,
+                            references=["IEEE C37.102", "Gers & Holmes, Protection of Electricity Distribution "
+                                        "Networks §5.8", "IEEE C37.112", "IEC 60255-151"],
+                            checks=checks, test_points=tests)
