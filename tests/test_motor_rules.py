@@ -1,0 +1,438 @@
+"""The induction-motor study end to end: settings, checks, test points, drawings and the edge cases of issue 3.
+
+Motors are built in code from :func:`motor_data` (a plain machine-file dict), so each test states the one thing
+it changes.
+"""
+
+from __future__ import annotations
+
+import copy
+import json
+import math
+
+import pytest
+
+from machines.errors import InputError
+from machines.files import case_from_dict
+from machines.standards.nema import HP
+from machines.standards.thermal_replica import thermal_operate_time
+from machines.study import run_study
+
+BASE = {
+    "format": "relaywright.machine/1",
+    "sheet": {"tag": "TEST-M-1"},
+    "machine": {
+        "kind": "induction-motor", "rated_output": "500 hp", "rated_voltage": "4.16 kV", "frequency": "60 Hz",
+        "rated_speed": "1785 rpm", "power_factor": 0.88, "efficiency": "95 %", "service_factor": 1.0,
+        "locked_rotor_current": "6.2 pu", "locked_rotor_torque": "0.9 pu", "breakdown_torque": "2.3 pu",
+        "safe_stall_time_cold": "20 s", "safe_stall_time_hot": "14 s", "rotor_inertia": "12 kg*m^2",
+    },
+    "load": {"inertia": "40 kg*m^2", "torque_profile": "quadratic", "torque_at_rated_speed": "0.9 pu",
+             "breakaway_torque": "0.1 pu"},
+    "supply": {"nominal_voltage": "4.16 kV", "fault_level": "250 MVA", "minimum_fault_level": "150 MVA",
+               "x_over_r": 15, "minimum_starting_voltage": "0.85 pu"},
+    "grounding": {"method": "low-resistance", "fault_current_limit": "400 A", "circuit_capacitance": "0.1 uF"},
+    "instruments": {"phase_ct": "100/5 A", "ground_ct": "50/5 A", "vt": "4200/120 V"},
+}
+
+
+def motor_data(**changes) -> dict:
+    """A copy of BASE with ``section__key=value`` changes (value None deletes the key)."""
+    data = copy.deepcopy(BASE)
+    for name, value in changes.items():
+        section, _, key = name.partition("__")
+        if value is None:
+            data[section].pop(key, None)
+        else:
+            data.setdefault(section, {})[key] = value
+    return data
+
+
+def study(**changes):
+    case, warnings = case_from_dict(motor_data(**changes))
+    return run_study(case, warnings)
+
+
+def messages(record, status=None, fid=None) -> list[str]:
+    return [c.message for f, c in record.all_checks() if (status is None or c.status == status)
+            and (fid is None or f == fid)]
+
+
+def value(record, fid, key):
+    return record.function(fid).settings[key].value
+
+
+# ---------------------------------------------------------------------------------------------------- the record
+
+
+def test_ids_and_required_keys():
+    # DESIGN.md table of stable ids and required keys
+    rec = study(load__minimum_load="0.4 pu")
+    need = {"49": {"pickup_current", "heating_time_constant", "cooling_time_constant"},
+            "51LR": {"pickup_current", "time_delay", "speed_switch_required"},
+            "50P": {"enabled", "pickup_current", "time_delay"}, "46": {"pickup_current"},
+            "50G": {"pickup_current", "time_delay"}, "27": {"pickup_voltage", "time_delay"},
+            "66": {"starts_cold", "starts_hot", "minimum_time_between_starts"}, "37": {"pickup_current", "time_delay"}}
+    for fid, keys in need.items():
+        assert keys <= set(rec.function(fid).settings), fid
+    for key in ("locked_rotor_current", "acceleration_time", "starting_voltage", "thermal_capacity_per_start"):
+        s = rec.derived[key]
+        assert s.source in ("derived", "entered") and s.unit
+    assert rec.function("81U") is None  # no load-shedding stages given
+    json.loads(rec.dumps())  # the record is valid JSON (no NaN / inf)
+
+
+def test_secondary_values_through_cts():
+    rec = study()
+    p = rec.function("49").settings["pickup_current"]
+    assert p.secondary == pytest.approx(p.value / 20.0)
+    g = rec.function("50G").settings["pickup_current"]
+    assert g.secondary == pytest.approx(g.value / 10.0)
+    v = rec.function("27").settings["pickup_voltage"]
+    assert v.secondary == pytest.approx(v.value / 35.0)
+
+
+def test_thermal_test_points_from_cold():
+    # IEC 60255-149 cold curve; tolerance ± 5 % or ± 30 ms (IEC 60255-151 template, REFERENCE 12.2)
+    rec = study()
+    f = rec.function("49")
+    pk, tau = f.settings["pickup_current"].value, f.settings["heating_time_constant"].value
+    timed = [t for t in f.test_points if t.expected_time is not None]
+    assert len(timed) >= 3
+    for t in timed:
+        assert t.initial_state == "cold" and t.secondary
+        assert t.expected_time == pytest.approx(thermal_operate_time(t.applied_primary, pk, tau))
+        assert t.tolerance_time == pytest.approx(max(0.05 * t.expected_time, 0.03))
+        assert t.applied == pytest.approx(t.applied_primary / 20.0)
+
+
+def test_definite_time_test_points():
+    # REFERENCE 12: definite-time elements get a pickup test and a delay test
+    rec = study()
+    for fid in ("51LR", "50G", "27", "46"):
+        tps = rec.function(fid).test_points
+        assert any(t.expected_time is None for t in tps), fid
+        assert any(t.expected_time for t in tps), fid
+
+
+def test_drawing_points_positive_and_in_range():
+    # reportlab log axes refuse values ≤ 0 (STACK.md): every point positive, finite and inside the range
+    rec = study()
+    (d,) = [d for d in rec.drawings if d.kind == "time-current"]
+    assert d.log_x and d.log_y and d.x_label == "Current [A primary]" and d.y_label == "Time [s]"
+    labels = " ".join(s.label for s in d.series)
+    for want in ("Start", "49 from cold", "49 from hot", "Safe stall, cold", "Safe stall, hot", "51LR", "50P"):
+        assert want in labels
+    for s in d.series:
+        for x, y in s.points:
+            assert x > 0 and y > 0 and math.isfinite(x) and math.isfinite(y)
+            assert d.x_range[0] <= x <= d.x_range[1] and d.y_range[0] <= y <= d.y_range[1]
+    assert [s.style for s in d.series if s.label.startswith("Safe stall")] == ["points", "points"]
+
+
+# ---------------------------------------------------------------------------------------------------- 49
+
+
+def test_sf_115_vs_10():
+    # REFERENCE 2.4 [P] and NEC 430.32(A)(1): SF 1.0 → 1.05 × FLC (limit 115 %), SF 1.15 → 1.20 × FLC (limit 125 %)
+    r10, r115 = study(), study(machine__service_factor=1.15)
+    flc = r10.derived["rated_current"].value
+    assert value(r10, "49", "pickup_current") == pytest.approx(1.05 * flc)
+    assert value(r115, "49", "pickup_current") == pytest.approx(1.20 * flc)
+    assert value(r115, "49", "pickup_current") <= 1.25 * flc
+
+
+def test_49_override_above_nec_fails_on_ieee_practice():
+    # NFPA 70 (NEC) 430.32(A)(1): SF 1.0 → at most 115 % of FLC
+    case, w = case_from_dict({**motor_data(), "study": {"practice": "IEEE"}, "overrides": {"49.pickup_current": "75 A"}})
+    rec = run_study(case, w)
+    assert rec.function("49").settings["pickup_current"].source == "override"
+    assert any("NEC 430.32" in m for m in messages(rec, "fail", "49"))
+    assert rec.worst == "fail"
+
+
+def test_49_shows_locked_rotor_times_and_margins():
+    # REFERENCE 2.2 [D]: fitted to the hot stall, the replica trips hot at I_LR in t_sh and from cold much later
+    rec = study()
+    s = rec.function("49").settings
+    assert s["trip_time_locked_rotor_hot"].value == pytest.approx(14.0, rel=1e-6)
+    assert s["trip_time_locked_rotor_cold"].value > 20.0
+    assert "margin" in s["trip_time_locked_rotor_cold"].note
+
+
+def test_49_short_time_constant_trips_start():
+    # IEC 60255-149 replica run through the start: a τ fitted to the cold stall trips a hot start (REFERENCE 2.2)
+    rec = study(**{"overrides__49.heating_time_constant": "60 s"})
+    assert any("trip during a normal start" in m for m in messages(rec, "fail", "49"))
+
+
+def test_maker_time_constant_is_used():
+    rec = study(machine__heating_time_constant="40 min")
+    s = rec.function("49").settings["heating_time_constant"]
+    assert s.value == pytest.approx(2400.0) and s.source == "maker-data"
+
+
+# ---------------------------------------------------------------------------------------------------- 51LR
+
+
+def test_51lr_window_and_order():
+    # REFERENCE 3.2 [P]: pickup between overload and 0.8·I_LR·V_min; delay in [1.1·t_acc, 0.9·t_sh]
+    rec = study()
+    f = rec.function("51LR")
+    acc = rec.derived["acceleration_time"].value
+    assert not f.settings["speed_switch_required"].value
+    assert 1.1 * acc <= f.settings["time_delay"].value <= 0.9 * 14.0
+    assert value(rec, "49", "pickup_current") < f.settings["pickup_current"].value < value(rec, "50P", "pickup_current")
+
+
+def test_acceleration_longer_than_hot_stall_needs_speed_switch():
+    # REFERENCE 3.2/3.4: no delay window → zero-speed switch
+    rec = study(load__inertia="400 kg*m^2")
+    acc = rec.derived["acceleration_time"].value
+    assert acc > 14.0
+    f = rec.function("51LR")
+    assert f.settings["speed_switch_required"].value is True
+    assert f.settings["time_delay"].value < 14.0
+    assert any("zero-speed switch" in m for m in messages(rec, "warn"))
+
+
+def test_speed_switch_override_false_fails():
+    rec = study(load__inertia="400 kg*m^2", **{"overrides__51LR.speed_switch_required": "false"})
+    assert any("speed_switch_required was set false" in m for m in messages(rec, "fail", "51LR"))
+
+
+# ---------------------------------------------------------------------------------------------------- starting
+
+
+def test_cannot_accelerate_at_minimum_voltage():
+    # REFERENCE 3.3: T_m·V² ≤ T_L below breakdown speed → failed check
+    rec = study(supply__minimum_starting_voltage="0.6 pu", load__torque_profile="constant",
+                load__torque_at_rated_speed="0.95 pu")
+    assert rec.derived["acceleration_time"].value is None
+    assert any("does not accelerate" in m for m in messages(rec, "fail"))
+    assert rec.worst == "fail"
+    json.loads(rec.dumps())
+    for d in rec.drawings:
+        for s in d.series:
+            assert all(x > 0 and y > 0 for x, y in s.points)
+
+
+def test_starting_voltage_from_fault_level_when_not_given():
+    # voltage divider of source and locked-rotor impedance, source = minimum fault level
+    rec = study(supply__minimum_starting_voltage=None)
+    flc = rec.derived["rated_current"].value
+    z_lr = 4160 / (math.sqrt(3) * 6.2 * flc)
+    z_s = 4160 ** 2 / 150e6
+    assert rec.derived["starting_voltage"].value == pytest.approx(z_lr / (z_lr + z_s))
+    assert rec.derived["minimum_starting_voltage"].value == pytest.approx(rec.derived["starting_voltage"].value)
+
+
+def test_inertia_in_wk2():
+    # REFERENCE 3.3: J [kg·m²] = 0.04214 × WK² [lb·ft²]
+    a = study(load__inertia="40 kg*m^2").derived["acceleration_time"].value
+    b = study(load__inertia=f"{40 / 0.0421401101:.6f} lb*ft^2").derived["acceleration_time"].value
+    assert a == pytest.approx(b, rel=1e-6)
+
+
+# ---------------------------------------------------------------------------------------------------- code letter
+
+
+def test_code_letter_instead_of_current():
+    # NEMA MG 1 10.37.2: code G = 5.6–6.3 kVA/hp; upper bound for reach (50P), lower for sensitivity (51LR)
+    rec = study(machine__locked_rotor_current=None, machine__locked_rotor_code="G")
+    lo = 1000 * 5.6 * 500 / (math.sqrt(3) * 4160)
+    hi = 1000 * 6.3 * 500 / (math.sqrt(3) * 4160)
+    assert rec.derived["locked_rotor_current_low"].value == pytest.approx(lo, rel=1e-6)
+    assert rec.derived["locked_rotor_current_high"].value == pytest.approx(hi, rel=1e-6)
+    assert rec.derived["locked_rotor_current"].value == pytest.approx(hi, rel=1e-6)
+    assert value(rec, "50P", "pickup_current") == pytest.approx(1.8 * hi, rel=1e-6)
+    assert value(rec, "51LR", "pickup_current") <= 0.8 * lo * 0.85
+
+
+def test_code_letter_v_warns():
+    rec = study(machine__locked_rotor_current=None, machine__locked_rotor_code="V")
+    assert any("Code letter V has no upper bound" in m for m in messages(rec, "warn"))
+
+
+# ---------------------------------------------------------------------------------------------------- 50P, fused
+
+
+def test_50p_breaker():
+    # REFERENCE 4.1: 1.8 × symmetrical I_LR, no delay, sensitivity ≥ 2 × against the min phase-to-phase fault
+    rec = study()
+    f = rec.function("50P")
+    flc = rec.derived["rated_current"].value
+    assert f.enabled and f.settings["enabled"].value is True
+    assert f.settings["pickup_current"].value == pytest.approx(1.8 * 6.2 * flc)
+    assert f.settings["time_delay"].value == 0.0
+    assert any("minimum phase-to-phase terminal fault" in m for m in messages(rec, "ok", "50P"))
+
+
+def test_50p_low_pickup_fails():
+    # REFERENCE 4.2: the half-cycle asymmetrical factor at X/R 15 is about 1.5 × I_LR
+    rec = study(**{"overrides__50P.pickup_current": f"{1.3 * 6.2 * 61.9:.1f} A"})
+    assert any("would trip on the starting inrush" in m for m in messages(rec, "fail", "50P"))
+
+
+def test_fused_contactor_complete_data():
+    # REFERENCE 4.1/4.2: 50P out of service, trips blocked above 0.9 × the contactor breaking current
+    rec = study(supply__starter="fused-contactor", supply__contactor_breaking_current="4 kA",
+                supply__fuse_rating="200 A")
+    f = rec.function("50P")
+    assert not f.enabled and f.settings["enabled"].value is False
+    assert f.settings["trip_block_current"].value == pytest.approx(3600.0)
+    assert "Fused contactor" in f.basis
+    assert not any("take-over cannot be judged" in m for m in messages(rec, "warn", "50P"))
+
+
+def test_fused_contactor_missing_fuse_data_warns():
+    rec = study(supply__starter="fused-contactor")
+    assert any("take-over cannot be judged" in m for m in messages(rec, "warn", "50P"))
+    assert any("block" in m for m in messages(rec, "warn", "50P"))
+
+
+def test_fused_contactor_50p_enabled_above_block_fails():
+    rec = study(supply__starter="fused-contactor", supply__contactor_breaking_current="4 kA",
+                supply__fuse_rating="200 A", **{"overrides__50P.enabled": "true", "overrides__50P.pickup_current": "3800 A"})
+    assert any("at or above the trip block threshold" in m for m in messages(rec, "fail", "50P"))
+    ok = study(supply__starter="fused-contactor", supply__contactor_breaking_current="4 kA",
+               supply__fuse_rating="200 A", **{"overrides__50P.enabled": "true"})
+    assert ok.function("50P").enabled and not messages(ok, "fail", "50P")
+
+
+def test_fused_contactor_that_cannot_break_locked_rotor_current():
+    rec = study(supply__starter="fused-contactor", supply__contactor_breaking_current="0.4 kA",
+                supply__fuse_rating="200 A")
+    assert any("cannot interrupt a stalled motor" in m for m in messages(rec, "fail", "50P"))
+
+
+# ---------------------------------------------------------------------------------------------------- 46, 50G, 27
+
+
+def test_46_heating_weight_and_derating_table():
+    # REFERENCE 5.3 [D]: K = T_LR/(s·I_LR²); NEMA MG 1 Fig. 14-1 digitised as a derived table
+    rec = study()
+    s = rec.function("46").settings
+    slip = (1800 - 1785) / 1800
+    assert s["heating_weight"].value == pytest.approx(0.9 / (slip * 6.2 ** 2))
+    rows = rec.derived["voltage_unbalance_derating"].value
+    assert rows[-1]["voltage_unbalance_percent"] == 5.0 and rows[-1]["derating_nema"] == pytest.approx(0.76)
+    assert s["pickup_current"].value > s["alarm_pickup_current"].value
+
+
+def test_50g_low_resistance():
+    # REFERENCE 7.2 [P]: ≥ 2 × own charging current, ≤ 10–20 % of the earth-fault current; check value REFERENCE 7.3
+    rec = study(grounding__circuit_capacitance="0.155 uF")
+    # REFERENCE 7.3: 4.16 kV, 0.155 µF → own 3·I_C0 = 0.4210 A → floor 0.8421 A
+    assert rec.derived["charging_current"].value == pytest.approx(0.4210, abs=5e-4)
+    f = rec.function("50G")
+    assert f.settings["pickup_current"].value == pytest.approx(40.0)
+    assert f.settings["action"].value == "trip" and f.settings["time_delay"].value == pytest.approx(0.1)
+
+
+def test_50g_high_resistance_is_alarm_only():
+    rec = study(grounding__method="high-resistance", grounding__fault_current_limit="5 A")
+    f = rec.function("50G")
+    assert f.settings["action"].value == "alarm"
+    assert "alarm only" in f.basis
+
+
+def test_50g_pickup_below_charging_floor_fails():
+    rec = study(grounding__circuit_capacitance="2 uF", **{"overrides__50G.pickup_current": "1 A"})
+    assert any("below twice the circuit's own charging current" in m for m in messages(rec, "fail", "50G"))
+
+
+def test_27_below_starting_voltage():
+    # REFERENCE 13 [P]: 0.70–0.80 pu; must not trip a normal start
+    rec = study(supply__minimum_starting_voltage="0.78 pu")
+    pu = value(rec, "27", "pickup_voltage") / 4160.0
+    assert pu == pytest.approx(0.73) and pu < 0.78
+
+
+def test_27_override_above_starting_voltage_fails():
+    rec = study(**{"overrides__27.pickup_voltage": "3700 V"})
+    assert any("picks up during every start" in m for m in messages(rec, "fail", "27"))
+
+
+# ---------------------------------------------------------------------------------------------------- 66, 81U, 37, 87M
+
+
+def test_66_starts_default_and_mg10():
+    # NEMA MG 1 12.54 / IEC 60034-12 standard duty (value from memory): 2 cold, 1 hot
+    rec = study(machine__rated_output="200 hp", machine__locked_rotor_current="6 pu", load__inertia="2 kg*m^2")
+    f = rec.function("66")
+    assert f.settings["starts_cold"].value == 2 and f.settings["starts_cold"].source == "standard"
+    # NEMA MG 10 Table 2-3 applies to a 200 hp 4-pole motor (between the 100 and 250 hp rows)
+    from machines.standards.nema import mg10_row
+    assert "starts_per_hour" in f.settings
+    rest = mg10_row(200.0, 4)[2]
+    assert f.settings["minimum_time_between_starts"].value >= rest - 1e-3
+
+
+def test_66_wait_from_cooling():
+    # REFERENCE 2.3 [D]: t_wait = τc·ln(θ/θ_allow) after a start from hot
+    rec = study(load__inertia="150 kg*m^2", machine__cooling_time_constant="120 min")
+    f = rec.function("66")
+    heat = f.settings["start_heat_fraction"].value
+    after = (1 - 14 / 20) + heat
+    allow = 1 - 1.1 * heat
+    expected = 7200.0 * math.log(after / allow) if after > allow else 60.0
+    assert f.settings["minimum_time_between_starts"].value == pytest.approx(max(expected, 60.0), rel=1e-6)
+
+
+def test_81u_only_with_stages():
+    rec = study(supply__underfrequency_stages=[{"frequency": "58.8 Hz", "time_delay": "0.3 s"},
+                                               {"frequency": "58.4 Hz", "time_delay": "0.2 s"}])
+    f = rec.function("81U")
+    assert [s["frequency"] for s in f.settings["stages"].value] == [58.8, 58.4]
+    assert len([t for t in f.test_points if t.expected_time]) == 2
+
+
+def test_37_only_with_minimum_load():
+    assert study().function("37") is None
+    rec = study(load__minimum_load="0.5 pu")
+    assert value(rec, "37", "pickup_current") == pytest.approx(0.4 * rec.derived["rated_current"].value)
+
+
+def test_87m_by_size():
+    # IEEE C37.96-1988 §4.2.17 settings; size threshold 1000 hp (value from memory)
+    assert study().function("87M") is None
+    rec = study(machine__rated_output="1500 hp", machine__rated_current="186 A")
+    f = rec.function("87M")
+    assert f.settings["slope"].value == pytest.approx(0.10)
+    assert f.settings["pickup_current"].value == pytest.approx(0.15 * 186.0)
+
+
+# ---------------------------------------------------------------------------------------------------- CT
+
+
+def test_ct_c37110_check():
+    # IEEE C37.110: (1 + X/R)·I_f·Z_b ≤ 20
+    rec = study(instruments__phase_ct="1200/5 A", instruments__phase_ct_class="C400", instruments__phase_ct_burden=
+                "0.5 ohm", supply__fault_level="180 MVA", supply__x_over_r=15)
+    i_f = 180e6 / (math.sqrt(3) * 4160) / 1200
+    assert rec.derived["ct_saturation_index"].value == pytest.approx(16 * i_f * 0.125)
+    assert any("C37.110" in m or "saturat" in m for m in messages(rec))
+
+
+def test_ct_bad_class_is_input_error():
+    with pytest.raises(InputError, match="phase_ct_class"):
+        study(instruments__phase_ct_class="X9", instruments__phase_ct_burden="0.5 ohm")
+
+
+def test_ct_missing_class_warns():
+    assert any("C37.110 saturation check was not made" in m for m in messages(study(), "warn"))
+
+
+def test_unknown_override_is_refused():
+    with pytest.raises(InputError, match="has no setting"):
+        study(**{"overrides__49.bogus": "1 A"})
+
+
+def test_example_file_runs():
+    from machines.files import load_case
+    from pathlib import Path
+    case, w = load_case(Path(__file__).resolve().parent.parent / "examples" / "chiller-compressor-motor.toml")
+    rec = run_study(case, w)
+    assert rec.function("49") and rec.derived["locked_rotor_current"].value == pytest.approx(6.2 * 186.0)
+    assert case.machine.rated_output / HP == pytest.approx(1500.0)
