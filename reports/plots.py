@@ -21,8 +21,9 @@ from reports.formatting import number
 ACCENT_HEX = "#0b5563"  # dark teal: the sheet's one accent colour
 FONT_SIZE = 7.5
 _DASH = {"line": None, "step": None, "dashed": [5.0, 2.5], "dotted": [1.0, 1.8], "points": None}
-_MARKERS = ("FilledCircle", "Square", "FilledTriangle", "Cross", "FilledDiamond", "Circle", "Triangle")
-_MARKERS_PER_CURVE = 6
+_MARKERS = ("FilledCircle", "Square", "FilledTriangle", "FilledDiamond", "Circle", "Triangle", "FilledSquare",
+            "Cross")
+_MARKERS_PER_CURVE = 5
 _CIRCLE_POINTS = 145
 
 
@@ -157,6 +158,40 @@ def _clip_segment(a, b, x0, x1, y0, y1):
     start = a if t0 == 0.0 else (a[0] + t0 * dx, a[1] + t0 * dy)
     end = b if t1 == 1.0 else (a[0] + t1 * dx, a[1] + t1 * dy)
     return start, end
+
+
+def markers_along(pieces: list[list[tuple[float, float]]], axes: Axes, size: tuple[float, float],
+                  count: int) -> list[tuple[float, float]]:
+    """``count`` marker positions spread evenly along the drawn length of a curve (as it appears on paper).
+
+    >>> markers_along([[(0.0, 0.0), (10.0, 0.0)]], Axes(0, 10, 0, 1, False, False), (100.0, 10.0), 2)
+    [(2.5, 0.0), (7.5, 0.0)]
+    """
+    def paper(p):
+        x, y = _fwd(p[0], axes.log_x), _fwd(p[1], axes.log_y)
+        return ((x - x0) / (x1 - x0) * size[0], (y - y0) / (y1 - y0) * size[1])
+
+    x0, x1 = _fwd(axes.x0, axes.log_x), _fwd(axes.x1, axes.log_x)
+    y0, y1 = _fwd(axes.y0, axes.log_y), _fwd(axes.y1, axes.log_y)
+    segments = []
+    for piece in pieces:
+        for a, b in zip(piece, piece[1:]):
+            pa, pb = paper(a), paper(b)
+            segments.append((a, b, math.hypot(pb[0] - pa[0], pb[1] - pa[1])))
+    total = sum(length for _, _, length in segments)
+    if total <= 0:
+        return []
+    out = []
+    targets = [(k + 0.5) / count * total for k in range(count)]
+    run = 0.0
+    for a, b, length in segments:
+        while targets and targets[0] <= run + length:
+            f = (targets.pop(0) - run) / length if length else 0.0
+            ta = (_fwd(a[0], axes.log_x), _fwd(a[1], axes.log_y))
+            tb = (_fwd(b[0], axes.log_x), _fwd(b[1], axes.log_y))
+            out.append((_back(ta[0] + f * (tb[0] - ta[0]), axes.log_x), _back(ta[1] + f * (tb[1] - ta[1]), axes.log_y)))
+        run += length
+    return out
 
 
 def step_points(points: list[tuple[float, float]]) -> list[tuple[float, float]]:
@@ -298,16 +333,15 @@ def render(d, width: float, height: float):
     for (label, style), pen, pts in zip(entries, all_pens, _entry_points(d, log_x, log_y)):
         if style == "step":
             pts = step_points(pts)
-        if pen.line:
-            for piece in clip_polyline(pts, axes):
-                if len(piece) >= 2:
-                    data.append(piece)
-                    styles.append((pen, False))
+        pieces = [p for p in clip_polyline(pts, axes) if len(p) >= 2] if pen.line else []
+        for piece in pieces:
+            data.append(piece)
+            styles.append((pen, False))
         if pen.marker:
-            inside = [(x, y) for x, y in pts if _inside(x, y, axes)]
-            if pen.line and len(inside) > _MARKERS_PER_CURVE:
-                stride = max(len(inside) // _MARKERS_PER_CURVE, 1)
-                inside = inside[stride // 2::stride]
+            if pen.line:
+                inside = markers_along(pieces, axes, (plot_w, plot_h), _MARKERS_PER_CURVE)
+            else:
+                inside = [(x, y) for x, y in pts if _inside(x, y, axes)]
             if inside:
                 data.append(inside)
                 styles.append((pen, True))
@@ -393,7 +427,7 @@ def _marker(make, pen: Pen):
     from reportlab.lib.colors import white
 
     m = make(pen.marker)
-    m.size = 4.5
+    m.size = 5.5
     m.strokeColor = pen.color
     m.strokeWidth = 0.8
     m.fillColor = pen.color if pen.marker.startswith("Filled") or pen.marker == "Cross" else white

@@ -86,7 +86,7 @@ class _Styles:
         self.h1 = ParagraphStyle("h1", base, fontName=SANS_BOLD, fontSize=11, leading=13.5, textColor=self.accent,
                                  spaceBefore=10, spaceAfter=3)
         self.h2 = ParagraphStyle("h2", base, fontName=SANS_BOLD, fontSize=9, leading=11, spaceBefore=6,
-                                 spaceAfter=2, keepWithNext=1)
+                                 spaceAfter=2)
         self.notice = ParagraphStyle("notice", base, fontSize=8.3, leading=10.6)
         self.alarm = ParagraphStyle("alarm", base, fontName=SANS_BOLD, fontSize=9, leading=11.5, spaceAfter=4)
 
@@ -155,8 +155,11 @@ def _pairs_table(sections, st: _Styles, width: float):
             rows.append([_p(title, st.cell_bold), "", "", ""])
         for i in range(0, len(pairs), 2):
             row = []
-            for label, value in pairs[i:i + 2]:
-                row += [_p(label, st.small), _p(value, st.cell)]
+            for label, value, *note in pairs[i:i + 2]:
+                cell = markup(value)
+                if note and note[0]:
+                    cell += f"<br/><font size='6.5' color='#555555'>{markup(note[0])}</font>"
+                row += [_p(label, st.small), _p_raw(cell, st.cell)]
             rows.append(row + [""] * (4 - len(row)))
     return _table(rows, [width * f for f in (0.2, 0.3, 0.2, 0.3)], cmds)
 
@@ -166,12 +169,27 @@ def _inputs(record, st: _Styles, width: float) -> list:
     sections = tables.input_sections(record)
     out.append(_pairs_table(sections, st, width) if sections else _p("No data entered.", st.body))
     derived = tables.derived_rows(record)
+    derived_tables = tables.derived_tables(record)
+    if derived or derived_tables:
+        out += [_condbreak(60), _p("Derived by the study", st.h2)]
     if derived:
-        out += [_p("Derived by the study", st.h2), _pairs_table([("", derived)], st, width)]
+        out.append(_pairs_table([("", derived)], st, width))
+    for title, header, rows in derived_tables:
+        n = len(header)
+        body = [[_p(h, st.head) for h in header]] + [[_p(v, st.cell) for v in row] for row in rows]
+        out += [_condbreak(50), _p(title, st.cell_bold),
+                _table(body, [width * 0.8 / n] * n, [("LINEBELOW", (0, 0), (-1, 0), 0.6, st.accent),
+                                                     ("LINEBELOW", (0, 1), (-1, -1), 0.25, st.grey)], repeat=1)]
     return out
 
 
-_SETTINGS_COLS = (("ID", 0.065), ("Function", 0.175), ("Setting", 0.19), ("Primary", 0.13), ("Relay side", 0.115),
+def _condbreak(height: float):
+    from reportlab.platypus import CondPageBreak
+
+    return CondPageBreak(height)
+
+
+_SETTINGS_COLS = (("ID", 0.065), ("Function", 0.175), ("Setting", 0.19), ("Primary", 0.13), ("Relay side (secondary)", 0.115),
                   ("Source", 0.115), ("Note", 0.21))
 
 
@@ -198,7 +216,12 @@ def _settings(record, st: _Styles, width: float) -> list:
         cmds.append(("NOSPLIT", (0, first), (-1, len(rows) - 1)))
         if first > 1:
             cmds.append(("TOPPADDING", (0, first), (-1, first), 4))
-    return out + [_table(rows, [width * f for _, f in _SETTINGS_COLS], cmds, repeat=1)]
+    legend = ("Source: <b>standard</b> the cited standard's rule; <b>common practice</b> a usual default without a "
+              "published limit, to be reviewed; <b>maker data</b> or <b>entered</b> from the machine file; "
+              "<b>override</b> the engineer's value in place of the computed one, checked the same way; "
+              "<b>derived</b> computed from the values above.")
+    return out + [_table(rows, [width * f for _, f in _SETTINGS_COLS], cmds, repeat=1), _spacer(3),
+                  _p_raw(legend, st.small)]
 
 
 def _p_raw(markup_text: str, style):
@@ -246,15 +269,16 @@ def _drawings(record, st: _Styles, width: float, frame_height: float) -> list:
     out = _heading("Drawings", st)
     if not drawings:
         return out + [_p("The study produced no drawings for this machine.", st.body)]
-    height = min((frame_height - 60) / 2 - 24, width * 0.72)
+    height = min((frame_height - 60) / 2 - 24, width * 0.72) if len(drawings) > 1 else \
+        min(frame_height * 0.62, width * 0.85)
     for d in drawings:
         out.append(KeepTogether([_p(d.title, st.h2), render(d, width, height)]))
     return out
 
 
-_TEST_COLS = (("No.", 0.08), ("Test", 0.16), ("Initial state", 0.085), ("Applied, primary", 0.11),
-              ("Applied, relay side", 0.11), ("Expected time", 0.1), ("Accepted band", 0.125),
-              ("Measured time", 0.12), ("Pass / fail", 0.11))
+_TEST_COLS = (("No.", 0.085), ("Test", 0.245), ("Initial state", 0.06), ("Applied, primary", 0.095),
+              ("Applied, relay side", 0.095), ("Expected time", 0.085), ("Accepted band", 0.14),
+              ("Measured time", 0.12), ("Pass / fail", 0.075))
 
 
 def _tests(record, st: _Styles, width: float) -> list:
@@ -264,23 +288,18 @@ def _tests(record, st: _Styles, width: float) -> list:
         return out + [_p("The study produced no test points.", st.body)]
     out.append(_p("Inject each value with the settings of this sheet applied to the relay; write the measured "
                   "operate time and pass or fail. The accepted band is the expected time plus and minus its "
-                  "tolerance.", st.small))
+                  "tolerance; the letter in brackets points to the tolerance rule under the table.", st.small))
     body = [[_p(name, st.head) for name, _ in _TEST_COLS]]
     for r in rows:
         body.append([_p(r.number, st.cell_bold), _p(r.test, st.cell), _p(r.initial_state, st.cell),
                      _p(r.applied_primary, st.cell), _p(r.applied_secondary, st.cell), _p(r.expected, st.cell),
-                     _p(r.band, st.cell), "", ""])
+                     _p(r.band + (f" [{r.tolerance_key}]" if r.tolerance_key else ""), st.cell), "", ""])
     cmds = [("LINEBELOW", (0, 0), (-1, 0), 1.0, st.accent), ("LINEBELOW", (0, 1), (-1, -1), 0.3, st.grey),
             ("BOX", (-2, 1), (-1, -1), 0.6, st.grey), ("INNERGRID", (-2, 1), (-1, -1), 0.6, st.grey),
             ("TOPPADDING", (0, 1), (-1, -1), 5), ("BOTTOMPADDING", (0, 1), (-1, -1), 7)]
     out.append(_table(body, [width * f for _, f in _TEST_COLS], cmds, repeat=1))
-    rules = []
-    for f in record.functions:
-        for t in f.test_points:
-            if t.tolerance_rule and t.tolerance_rule not in rules:
-                rules.append(t.tolerance_rule)
-    for rule in rules:
-        out.append(_p(f"Tolerance: {rule}", st.small))
+    for key, rule in tables.tolerance_notes(record):
+        out.append(_p(f"[{key}] tolerance: {rule}", st.small))
     blanks = [[_p("Tested by", st.small), "", _p("Date", st.small), "", _p("Relay and firmware", st.small), "",
                _p("Test set", st.small), ""]]
     out.append(_table(blanks, [width * f for f in (0.09, 0.16, 0.05, 0.12, 0.14, 0.18, 0.08, 0.18)],

@@ -7,9 +7,10 @@ sheet only escapes and lays them out. Nothing here calculates a setting.
 
 from __future__ import annotations
 
+import re
 from typing import Any, NamedTuple
 
-from reports.formatting import label_of, quantity, setting_primary, setting_secondary
+from reports.formatting import label_of, number, quantity, setting_primary, setting_secondary
 
 STATUS_WORD = {"fail": "FAIL", "warn": "WARN", "ok": "ok"}
 SOURCE_WORD = {"standard": "standard", "common-practice": "common practice", "maker-data": "maker data",
@@ -61,6 +62,7 @@ class CommissioningRow(NamedTuple):
     band: str
     measured: str = ""
     result: str = ""
+    tolerance_key: str = ""
 
 
 def identification_rows(record) -> list[tuple[str, str]]:
@@ -91,7 +93,7 @@ def input_sections(record) -> list[tuple[str, list[tuple[str, str]]]]:
     return out
 
 
-_ACRONYMS = {"ct": "CT", "vt": "VT", "pu": "pu", "i2": "I2", "x2": "X2", "xd": "Xd", "xq": "Xq", "lr": "LR"}
+_ACRONYMS = {"ct": "CT", "vt": "VT", "pu": "pu", "i2": "I2", "x2": "X2", "xd": "Xd", "xq": "Xq", "lr": "LR", "nema": "NEMA", "iec": "IEC", "ieee": "IEEE"}
 
 
 def printed_label(key: str, js: dict | None = None) -> str:
@@ -108,10 +110,14 @@ def printed_label(key: str, js: dict | None = None) -> str:
 
 
 def as_entered(value: Any) -> str:
-    """A value from the machine file as its writer typed it (TOML spelling for booleans and tables).
+    """A value from the machine file as its writer typed it, units spelt as on paper (TOML for booleans).
+
+    The number is never changed; only the unit's ASCII spelling is printed the way a practitioner writes it.
 
     >>> as_entered("6.6 kV"), as_entered(True), as_entered(0.89), as_entered([{"low": "47.5 Hz", "allowed": "60 s"}])
     ('6.6 kV', 'true', '0.89', 'low 47.5 Hz, allowed 60 s')
+    >>> as_entered("34 kg*m^2"), as_entered("0.12 uF"), as_entered("0.6 ohm"), as_entered("quadratic")
+    ('34 kg·m²', '0.12 µF', '0.6 Ω', 'quadratic')
     """
     if isinstance(value, bool):
         return "true" if value else "false"
@@ -119,16 +125,74 @@ def as_entered(value: Any) -> str:
         return ", ".join(f"{k} {as_entered(v)}" for k, v in value.items())
     if isinstance(value, (list, tuple)):
         return "; ".join(as_entered(v) for v in value)
+    if isinstance(value, str):
+        m = _VALUE_UNIT.match(value)
+        if m:
+            return m.group(1) + _paper_unit(m.group(2))
     return str(value)
 
 
-def derived_rows(record) -> list[tuple[str, str]]:
-    """Quantities the study derived from the data (locked-rotor current, acceleration time, ...)."""
+_VALUE_UNIT = re.compile(r"^([-+]?[0-9][0-9.eE+-]*\s*)([A-Za-zµΩ][A-Za-z0-9*/^·.µΩ% ]*)$")
+_UNIT_WORDS = {"ohm": "Ω", "ohms": "Ω", "kohm": "kΩ", "Mohm": "MΩ", "mohm": "mΩ", "degC": "°C", "deg": "°",
+               "uF": "µF", "uH": "µH", "us": "µs", "uA": "µA", "uV": "µV"}
+
+
+def _paper_unit(unit: str) -> str:
+    """ASCII unit spelling as printed: ``kg*m^2`` → ``kg·m²``, ``uF`` → ``µF``, ``ohm`` → ``Ω``."""
+    parts = re.split(r"([*/ ])", unit)
+    out = []
+    for part in parts:
+        if part == "*":
+            out.append("·")
+            continue
+        base, _, power = part.partition("^")
+        base = _UNIT_WORDS.get(base, base)
+        out.append(base + ("" if not power else power.translate(_SUPERSCRIPT) if power.isdigit() else "^" + power))
+    return "".join(out)
+
+
+_SUPERSCRIPT = str.maketrans("0123456789", "⁰¹²³⁴⁵⁶⁷⁸⁹")
+
+
+def derived_rows(record) -> list[tuple[str, str, str]]:
+    """Single quantities the study derived from the data: (label, value, note); tables are in derived_tables."""
     rows = []
     for key, s in record.derived.items():
+        if _is_table(s.value):
+            continue
         js = s.to_json()
-        rows.append((printed_label(key, js), _with_secondary(js)))
+        rows.append((printed_label(key, js), _with_secondary(js), s.note))
     return rows
+
+
+def derived_tables(record) -> list[tuple[str, list[str], list[list[str]]]]:
+    """Derived values that are tables (a list of rows with the same keys): (title, header, rows)."""
+    out = []
+    for key, s in record.derived.items():
+        if not _is_table(s.value):
+            continue
+        columns = list(s.value[0])
+        header = [printed_label(c) for c in columns]
+        rows = [[as_number(row.get(c)) for c in columns] for row in s.value]
+        title = printed_label(key, s.to_json()) + (f" ({s.note})" if s.note else "")
+        out.append((title, header, rows))
+    return out
+
+
+def _is_table(value: Any) -> bool:
+    return isinstance(value, (list, tuple)) and bool(value) and all(isinstance(v, dict) for v in value) \
+        and all(list(v) == list(value[0]) for v in value)
+
+
+def as_number(value: Any) -> str:
+    """A plain table entry: numbers to 4 significant figures, anything else as text.
+
+    >>> as_number(0.99850336), as_number(3.1000000000000005), as_number("IEC"), as_number(None)
+    ('0.9985', '3.1', 'IEC', '—')
+    """
+    if isinstance(value, bool) or not isinstance(value, (int, float)):
+        return quantity(value, "")
+    return number(float(value))
 
 
 def _with_secondary(js: dict) -> str:
@@ -167,6 +231,8 @@ def finding_rows(record, include_ok: bool = True) -> list[FindingRow]:
 def commissioning_rows(record) -> list[CommissioningRow]:
     """The commissioning test table, numbered ``<function id>.<n>`` so a handwritten note can point at a row."""
     rows = []
+    keys = dict(tolerance_notes(record))
+    keys = {rule: key for key, rule in keys.items()}
     for f in record.functions:
         for n, t in enumerate(f.test_points, start=1):
             if t.secondary:
@@ -184,8 +250,29 @@ def commissioning_rows(record) -> list[CommissioningRow]:
                 applied_primary=primary, applied_secondary=secondary,
                 expected="must not operate" if t.expected_time is None else quantity(t.expected_time, "s"),
                 band=tolerance_band(t.expected_time, t.tolerance_time),
+                tolerance_key=keys.get(t.tolerance_rule, ""),
             ))
     return rows
+
+
+def tolerance_notes(record) -> list[tuple[str, str]]:
+    """The distinct tolerance rules of the test points, keyed a, b, c ... in order of first use."""
+    rules: list[str] = []
+    for f in record.functions:
+        for t in f.test_points:
+            if t.tolerance_rule and t.tolerance_rule not in rules:
+                rules.append(t.tolerance_rule)
+    return [(_letters(i), rule) for i, rule in enumerate(rules)]
+
+
+def _letters(i: int) -> str:
+    """0 → a, 25 → z, 26 → aa."""
+    out = ""
+    i += 1
+    while i:
+        i, r = divmod(i - 1, 26)
+        out = chr(97 + r) + out
+    return out
 
 
 def tolerance_band(expected: float | None, tolerance: float) -> str:

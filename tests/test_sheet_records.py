@@ -74,7 +74,8 @@ def motor_record(tag: str = "CH-M-101", description: str = "Chiller 1 compressor
         "Pickup at service factor times rated current; heating time constant from the hot safe stall time.",
         ["IEC 60255-149"],
         checks=[Check("ok", "Thermal curve from hot lies below the hot safe stall time at locked-rotor current.")],
-        test_points=[Injection("current", 10.0, "A", 71.3, 3.6, True, "cold", 500.0, "A", "2× pickup from cold"),
+        test_points=[Injection("current", 10.0, "A", 71.3, 3.6, True, "cold", 500.0, "A", "2× pickup from cold",
+                               "±5 % or ±30 ms, whichever is greater"),
                      Injection("current", 4.0, "A", None, 0.0, True, "cold", 200.0, "A", "below pickup")])
     f51 = FunctionSettings(
         "51LR", "Locked rotor",

@@ -104,6 +104,7 @@ def test_inputs_as_entered(record):
     assert list(sections) == ["Machine", "Supply", "Instrument transformers", "Overrides"]
     machine = dict(sections["Machine"])
     assert machine["Rated voltage"] == "4.16 kV"  # the text as written, not a converted value
+    assert machine["Cooling time constant"] == "180 min"
     assert machine["Power factor"] == "0.89"
     assert dict(sections["Instrument transformers"]) == {"Phase CT": "250/5 A", "VT": "4200/120 V"}
     assert dict(sections["Overrides"]) == {"51LR.pickup_current": "450 A"}  # override keys print as written
@@ -119,8 +120,24 @@ def test_identification(record):
 
 
 def test_derived_rows(record):
-    assert tables.derived_rows(record) == [("Locked rotor current", "1153 A (23.06 A relay side)"),
-                                           ("Acceleration time", "7.9 s")]
+    assert tables.derived_rows(record) == [("Locked rotor current", "1153 A (23.06 A relay side)", ""),
+                                           ("Acceleration time", "7.9 s", "")]
+
+
+def test_derived_tables(record):
+    from machines.record import Setting
+
+    record.derived["derating"] = Setting([{"unbalance": 1.0, "factor": 0.9985}, {"unbalance": 2.0, "factor": 0.95}],
+                                         "", "derived", label="Unbalance derating", note="NEMA MG 1")
+    assert [r[0] for r in tables.derived_rows(record)] == ["Locked rotor current", "Acceleration time"]
+    assert tables.derived_tables(record) == [("Unbalance derating (NEMA MG 1)", ["Unbalance", "Factor"],
+                                              [["1", "0.9985"], ["2", "0.95"]])]
+
+
+def test_tolerance_notes_are_keyed(record):
+    rows = tables.commissioning_rows(record)
+    assert tables.tolerance_notes(record) == [("a", "±5 % or ±30 ms, whichever is greater")]
+    assert [r.tolerance_key for r in rows] == ["a", "", ""]
 
 
 @pytest.mark.parametrize("module", ["reports.tables", "reports.plots", "reports.fonts", "reports.sheet_command"])
