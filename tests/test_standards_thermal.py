@@ -110,3 +110,12 @@ def test_profile_equals_scalar_loop():
     for j in range(3):
         theta = thermal_level(i[j], 1.2, 900.0, t[j + 1] - t[j], theta)
         assert lvl[j + 1] == pytest.approx(theta, rel=1e-12)
+
+
+def test_profile_long_horizon_matches_step_form():
+    # the closed-form sum and the step-by-step recurrence are the same IEC 60255-149 model (t/τ beyond exp range)
+    t = np.linspace(0.0, 2000.0, 201)
+    lvl = thermal_level_profile(t, np.full(t.size, 1.0), 1.2, 2.0, 0.5)
+    assert lvl[-1] == pytest.approx((1.0 / 1.2) ** 2)
+    assert thermal_level_profile(t[:3], [1.0, 1.0, 1.0], 1.2, 2.0, 0.5)[2] == pytest.approx(
+        thermal_level(1.0, 1.2, 2.0, t[2], 0.5))

@@ -2,8 +2,8 @@
 
 Rule (REFERENCE 13 [P][M]): 0.75 pu of the motor's rated voltage for 2 s, riding through faults elsewhere and letting
 the motor reaccelerate; coordinate with bus transfer. The element must not trip a normal start: when the minimum
-starting voltage is near the pickup the pickup drops to 0.05 pu below it (not under 0.65 pu) or 27 must be blocked
-while starting.
+starting voltage is near the pickup the pickup drops to 0.05 pu below it (not under 0.65 pu), and where that is not
+enough 27 is blocked while the motor starts (``blocked_during_start``).
 """
 
 from __future__ import annotations
@@ -30,11 +30,17 @@ def settings(ctx: StudyContext) -> FunctionSettings:
     pickup, p_src = ctx.choose(FID, "pickup_voltage", p_pu * vn, "voltage", "V", "common-practice")
     delay, d_src = ctx.choose(FID, "time_delay", DELAY, "time", "s", "common-practice")
     pu = pickup / vn
+    block, b_src = ctx.choose(FID, "blocked_during_start", pu > b.minimum_voltage - START_MARGIN, "boolean", "",
+                              "common-practice")
     if vt is None:
         checks.append(Check("warn", "No VT (instruments.vt): 27 needs a voltage input; secondary values are not "
                                     "given."))
     t_acc = b.start_min.acceleration_time
-    if pu >= b.minimum_voltage:
+    if block:
+        checks.append(Check("warn", f"27 ({pu:.2f} pu) is blocked while the motor starts (start-in-progress input), "
+                                    f"because the minimum starting voltage {b.minimum_voltage:.3f} pu is close to or "
+                                    "below its pickup: wire the relay's start-in-progress logic."))
+    elif pu >= b.minimum_voltage:
         status = "fail" if t_acc > delay else "warn"
         checks.append(Check(status, f"The 27 pickup {pu:.2f} pu is at or above the minimum starting voltage "
                                     f"{b.minimum_voltage:.3f} pu: it picks up during every start at that voltage "
@@ -60,7 +66,8 @@ def settings(ctx: StudyContext) -> FunctionSettings:
                          description="step from rated to 0.95 × pickup: operates after the delay" + unit_note),
     ]
     s = {"pickup_voltage": voltage_setting(pickup, vt, p_src, "Pickup (line-to-line)", note=f"{pu:.2f} pu"),
-         "time_delay": Setting(delay, "s", d_src, label="Delay")}
+         "time_delay": Setting(delay, "s", d_src, label="Delay"),
+         "blocked_during_start": Setting(bool(block), "", b_src, label="Blocked while starting")}
     basis = (f"Pickup {pu:.2f} pu for {delay:g} s: rides through faults cleared elsewhere and lets the motor "
              f"reaccelerate; below the minimum starting voltage {b.minimum_voltage:.3f} pu so starts do not trip.")
     return FunctionSettings(FID, "Undervoltage", s, basis,

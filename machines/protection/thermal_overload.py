@@ -28,7 +28,8 @@ from machines.standards.thermal_replica import (
 FID = "49"
 PICKUP_ABOVE_SF = 0.05  #: pickup = (service factor + this) × FLC [pu]; REFERENCE 2.4, common practice
 COOLING_RATIO = 3.0  #: standstill cooling constant / heating constant when the maker gives none; REFERENCE 2.3 [P]
-ALARM_LEVEL = 0.90  #: thermal alarm level [-]; REFERENCE 2.4 (80–95 %) [P]
+ALARM_LEVEL = 0.95  #: thermal alarm level [-]; REFERENCE 2.4 (80–95 %), above the level at service-factor load [P]
+START_SHARE = 0.90  #: a hot start at minimum voltage may use at most this share of the capacity left [-] [P]
 TEST_MULTIPLES = (2.0, 3.0, 5.0)  #: test currents, multiples of the pickup [-]
 
 
@@ -41,6 +42,20 @@ def replica_through_start(start, pickup: float, tau: float, initial_level: float
         return float(lvl.max()), float(lvl[-1])
     lvl = thermal_level_profile(start.times, start.currents, pickup, tau, initial_level)
     return float(lvl.max()), float(lvl[-1])
+
+
+def time_constant_for_start(start, pickup: float, initial_level: float, share: float = START_SHARE) -> float:
+    """Shortest heating time constant whose replica, starting at ``initial_level``, uses at most ``share`` of the
+    capacity left (1 − θ0) through ``start`` [s] (bisection on τ; the level falls as τ grows)."""
+    peak = initial_level + share * (1.0 - initial_level)
+    lo, hi = 1.0, 1e6
+    for _ in range(60):
+        mid = math.sqrt(lo * hi)
+        if replica_through_start(start, pickup, mid, initial_level)[0] > peak:
+            lo = mid
+        else:
+            hi = mid
+    return hi
 
 
 def settings(ctx: StudyContext) -> FunctionSettings:
@@ -72,6 +87,16 @@ def settings(ctx: StudyContext) -> FunctionSettings:
     elif pickup > flc and i_lr > pickup:
         tau0 = time_constant_from_trip_time(m.safe_stall_time_hot, i_lr, pickup, flc)
         t_src, t_basis = "derived", "fitted to the hot safe stall time at locked-rotor current (REFERENCE 2.2)"
+        if b.start_min.accelerates:
+            need = time_constant_for_start(b.start_min, pickup, (flc / pickup) ** 2)
+            if need > tau0:
+                tau0 = need
+                t_basis = (f"lengthened beyond the hot-stall fit so that a start from hot at minimum voltage "
+                           f"uses at most {START_SHARE:.0%} of the capacity left (the start takes longer than the "
+                           "replica fitted to the hot stall allows; the stall is left to 51LR)")
+                checks.append(Check("warn", "The heating time constant was lengthened beyond the hot-stall fit so "
+                                            "that a start from hot does not trip: a stall from hot is then protected "
+                                            "by 51LR alone. Ask the maker for the acceleration thermal limit."))
     else:
         tau0, t_src, t_basis = 1800.0, "common-practice", "a 30 min default (the fit needs FLC < pickup < I_LR)"
     tau, t_src = ctx.choose(FID, "heating_time_constant", tau0, "time", "s", t_src)
@@ -88,6 +113,11 @@ def settings(ctx: StudyContext) -> FunctionSettings:
                                     f"time constant ({tau / 60:.1f} min); a stopped motor cools more slowly than a "
                                     "running one. Check the maker's data."))
 
+    alarm, a_src = ctx.choose(FID, "alarm_level", ALARM_LEVEL, "per_unit", "", "common-practice")
+    theta_sf = (m.service_factor * flc / pickup) ** 2
+    if alarm <= theta_sf:
+        checks.append(Check("warn", f"The thermal alarm level {alarm:.0%} is not above the level reached at "
+                                    f"service-factor load ({theta_sf:.0%}): the alarm would stand in normal running."))
     # operate times at locked-rotor current, cold and hot, against the stall times
     t_cold = thermal_operate_time(i_lr, pickup, tau)
     t_hot = thermal_operate_time(i_lr, pickup, tau, flc)
@@ -138,7 +168,7 @@ def settings(ctx: StudyContext) -> FunctionSettings:
         "heating_time_constant": Setting(tau, "s", t_src, label="Heating time constant", note=f"{tau / 60:.1f} min"),
         "cooling_time_constant": Setting(tau_c, "s", c_src, label="Cooling time constant (standstill)",
                                          note=f"{tau_c / 60:.1f} min"),
-        "alarm_level": Setting(ALARM_LEVEL, "pu", "common-practice", label="Thermal alarm level"),
+        "alarm_level": Setting(alarm, "pu", a_src, label="Thermal alarm level"),
         "trip_time_locked_rotor_cold": Setting(t_cold, "s", "derived", label="Operate time at I_LR from cold",
                                                note=f"margin to cold stall {margin_cold:+.1f} s"),
         "trip_time_locked_rotor_hot": Setting(t_hot, "s", "derived", label="Operate time at I_LR from hot",

@@ -238,7 +238,9 @@ def thermal_level_profile(times, currents, pickup_current: float, time_constant:
 
     Notes
     -----
-    θ_{j+1} = θ_j·e^(−Δt/τ) + (I_j/(k·I_B))²·(1 − e^(−Δt/τ)) — the IEC 60255-149 step applied piece by piece.
+    θ_{j+1} = θ_j·e^(−Δt/τ) + (I_j/(k·I_B))²·(1 − e^(−Δt/τ)) — the IEC 60255-149 step applied piece by piece,
+    summed in closed form: θ(t_n) = e^(−t_n/τ)·[θ_0 + Σ_{j<n} q_j·(e^(t_{j+1}/τ) − e^(t_j/τ))], q_j = (I_j/(k·I_B))²,
+    with times taken from t_0.
 
     Examples
     --------
@@ -247,12 +249,20 @@ def thermal_level_profile(times, currents, pickup_current: float, time_constant:
     1.0
     """
     t = np.asarray(times, dtype=float)
+    t = t - t[0]
     i = np.asarray(currents, dtype=float)
-    decay = np.exp(-np.diff(t) / time_constant)
-    drive = (i[:-1] / pickup_current) ** 2 * (1.0 - decay)
-    out = np.empty(t.size)
-    out[0] = level = initial_level
-    for j in range(decay.size):  # a recurrence; a few hundred steps per start
-        level = level * decay[j] + drive[j]
-        out[j + 1] = level
-    return out
+    q = (i[:-1] / pickup_current) ** 2
+    if t[-1] / time_constant > 500.0:  # e^(t/τ) would overflow: step by step instead
+        decay = np.exp(-np.diff(t) / time_constant)
+        out = np.empty(t.size)
+        out[0] = level = initial_level
+        for j in range(decay.size):
+            level = level * decay[j] + q[j] * (1.0 - decay[j])
+            out[j + 1] = level
+        return out
+    grow = np.exp(t / time_constant)
+    acc = np.empty(t.size)
+    acc[0] = initial_level
+    np.cumsum(q * np.diff(grow), out=acc[1:])
+    acc[1:] += initial_level
+    return acc / grow
