@@ -71,12 +71,13 @@ def index_rows(rows: list[IndexRow]) -> list[PrintedRow]:
     [PrintedRow(tag='P-1', description='Pump', revision='2', findings='1 warning', sheet='P-1-rev2.pdf', \
 fingerprint='sha256:ab')]
     >>> index_rows([IndexRow("b.toml", "bad", message="machine.frequency: expected a frequency")])[0][:4]
-    ('b.toml', 'bad input: machine.frequency: expected a frequency', '—', '—')
+    ('b.toml', 'bad input in b.toml: machine.frequency: expected a frequency', '—', '—')
     """
     out = []
     for r in rows:
         if r.status == "bad":
-            out.append(PrintedRow(r.tag or r.path, f"bad input: {r.message}", "—", "—", "not written", ""))
+            out.append(PrintedRow(r.tag or r.path, f"bad input in {r.path}: {r.message}", "—", "—", "not written",
+                                  ""))
         else:
             out.append(PrintedRow(r.tag, r.description, "" if r.revision is None else str(r.revision),
                                   findings_text(r.warnings, r.failures), r.sheet, r.fingerprint))

@@ -49,6 +49,7 @@ class Task:
     name: str  #: output file name without extension
     out: str
     force: bool
+    tag: str = ""  #: as the file gives it (unvalidated: for the summary when the file turns out bad)
 
 
 @dataclass
@@ -177,7 +178,7 @@ def plan_batch(directory: Path, output: Path, force: bool = False) -> Plan:
         tag = sheet.get("tag") if isinstance(sheet.get("tag"), str) else ""
         machines.append((shown, data, tag, sheet.get("revision", 0)))
     names = output_names([(p, tag, rev) for p, _, tag, rev in machines])
-    plan.tasks = [Task(p, data, names[p], str(output), force) for p, data, _, _ in machines]
+    plan.tasks = [Task(p, data, names[p], str(output), force, tag) for p, data, tag, _ in machines]
     return plan
 
 
@@ -196,14 +197,14 @@ def process_machine(task: Task) -> Outcome:
     try:
         outcome = _process(task)
     except InputError as e:
-        outcome = Outcome(task.path, "bad", str(e), name=task.name)
+        outcome = Outcome(task.path, "bad", str(e), tag=task.tag)
     except OSError as e:
         outcome = Outcome(task.path, "bad", f"{e.filename or task.out}: cannot write ({e.strerror or e}); "
-                                           "earlier files were kept", name=task.name)
+                                           "earlier files were kept", tag=task.tag)
     except Exception as e:  # a bug must not stop the other machines, nor print a traceback
         first = str(e).splitlines()[0] if str(e) else ""
         outcome = Outcome(task.path, "bad", f"could not complete ({type(e).__name__}: {first}); nothing was "
-                                            "written; please report this with the input file", name=task.name)
+                                            "written; please report this with the input file", tag=task.tag)
     outcome.peak_rss_kb = _peak_rss_kb()
     return outcome
 
@@ -314,13 +315,14 @@ def _run_tasks(tasks: list[Task], workers: int | None, collect) -> None:
     One worker (or one task) runs in this process; more run in a ``spawn`` pool.
     """
     from rich.console import Console
-    from rich.progress import BarColumn, MofNCompleteColumn, Progress, TextColumn, TimeElapsedColumn
+    from rich.progress import (BarColumn, MofNCompleteColumn, Progress, TextColumn, TimeElapsedColumn,
+                               TimeRemainingColumn)
 
     if not tasks:
         return
     n = max(1, min(workers or os.cpu_count() or 1, len(tasks)))
     columns = (TextColumn("{task.description}"), BarColumn(), MofNCompleteColumn(), TimeElapsedColumn(),
-               TextColumn("{task.fields[last]}", style="dim"))
+               TextColumn("left"), TimeRemainingColumn(), TextColumn("{task.fields[last]}", style="dim"))
     with Progress(*columns, console=Console(stderr=True), transient=False) as progress:
         bar = progress.add_task(f"sheets ({n} worker{'s' if n > 1 else ''})", total=len(tasks), last="")
 
