@@ -259,3 +259,41 @@ def test_cli_batch_reports_in_one_line(plant, tmp_path):
     assert result.returncode == 2
     assert result.stderr.strip().splitlines()[0].startswith("error: ")
     assert "expected a folder of machine files" in result.stderr and "Traceback" not in result.stderr
+
+
+def die_on_pump(task):
+    """A job for the pool that kills its own worker on one file, as the out-of-memory killer would."""
+    from wizard.batch import process_machine
+
+    if task.path == "pump.toml":
+        os._exit(9)
+    return process_machine(task)
+
+
+def test_a_dying_worker_is_reported_not_waited_for(plant, tmp_path):
+    from wizard.batch import _run_pool, plan_batch
+
+    out = tmp_path / "out"
+    out.mkdir()
+    plan = plan_batch(plant, out)
+    outcomes = []
+    started = time.monotonic()
+    _run_pool(plan.tasks, 2, outcomes.append, job=die_on_pump)
+    assert time.monotonic() - started < 30
+    by_path = {o.path: o for o in outcomes}
+    assert sorted(by_path) == sorted(t.path for t in plan.tasks)
+    assert by_path["pump.toml"].status == "bad" and "worker process stopped" in by_path["pump.toml"].message
+    assert by_path["north/chiller.toml"].status in ("ok", "warn")
+    assert not (out / "CW-P-201_spare_co-rev2.pdf").exists()
+
+
+def test_doctests_of_the_batch_and_index_modules():
+    # pyproject's testpaths collect doctests under machines/ only; these modules carry their own
+    import doctest
+
+    import reports.changes
+    import reports.index
+    import wizard.batch
+
+    for module in (wizard.batch, reports.index, reports.changes):
+        assert doctest.testmod(module, optionflags=doctest.NORMALIZE_WHITESPACE).failed == 0, module.__name__

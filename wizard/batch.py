@@ -346,7 +346,13 @@ def _say_interrupted(done: int, total: int, output: Path) -> None:
         "nothing else was written or changed (the index was not updated)"))
 
 
-def _run_pool(tasks: list[Task], n: int, done) -> None:
+def _run_pool(tasks: list[Task], n: int, done, job=process_machine) -> None:
+    """Run ``job`` over ``tasks`` in a spawn pool of ``n`` workers, handing each outcome to ``done``.
+
+    A worker that dies (killed, out of memory) takes its task with it and ``multiprocessing.Pool`` would wait for
+    that result forever; so the loop also watches for replaced workers, and each task left without an outcome at
+    the end is reported as bad input rather than waited for.
+    """
     import multiprocessing
 
     # Workers start with Ctrl-C ignored (an ignored SIGINT is inherited and kept by a new interpreter), so one
@@ -356,15 +362,36 @@ def _run_pool(tasks: list[Task], n: int, done) -> None:
         pool = multiprocessing.get_context("spawn").Pool(n, initializer=_init_worker)
     finally:
         signal.signal(signal.SIGINT, previous)
+    finished: set[str] = set()
+    lost = 0
     try:
-        for outcome in pool.imap_unordered(process_machine, tasks, chunksize=1):
+        results = pool.imap_unordered(job, tasks, chunksize=1)
+        workers = {p.pid for p in multiprocessing.active_children()}
+        while len(finished) + lost < len(tasks):
+            try:
+                outcome = results.next(timeout=0.5)
+            except multiprocessing.TimeoutError:
+                now = {p.pid for p in multiprocessing.active_children()}
+                lost += len(now - workers)  # a new worker replaces one that died with its task
+                workers |= now
+                continue
+            finished.add(outcome.path)
             done(outcome)
-        pool.close()
     except BaseException:  # Ctrl-C or a failure here: stop the workers (at once) before anything else
         pool.terminate()
         pool.join()
         _remove_partial_writes(tasks)
         raise
+    if lost:
+        pool.terminate()  # close() would wait for the results that will never come
+        pool.join()
+        _remove_partial_writes(tasks)
+        for task in tasks:
+            if task.path not in finished:
+                done(Outcome(task.path, "bad", "the worker process stopped while studying this file (killed, or "
+                                               "out of memory?); nothing was written for it", tag=task.tag))
+        return
+    pool.close()
     pool.join()
 
 
