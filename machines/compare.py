@@ -196,24 +196,27 @@ def _setting_dict_changes(prefix: str, old: dict[str, Setting], new: dict[str, S
         ja.pop("label", None), jb.pop("label", None), ja.pop("note", None), jb.pop("note", None)
         if ja == jb:
             continue
-        secondary = ja.get("secondary") != jb.get("secondary") and ja.get("value") == jb.get("value")
+        secondary = ja.get("secondary") != jb.get("secondary")  # the value keyed into the relay changed
         source = ja["source"] != jb["source"]
-        changes.append(Change(prefix + name, _show_setting(a, secondary, source), _show_setting(b, secondary, source)))
+        was, now = _show_setting(a, secondary, source), _show_setting(b, secondary, source)
+        if was == now:  # they differ below four figures: show the six the record keeps
+            was, now = _show_setting(a, secondary, source, 6), _show_setting(b, secondary, source, 6)
+        changes.append(Change(prefix + name, was, now))
     return changes
 
 
-def _show_setting(s: Setting, secondary: bool = False, source: bool = False) -> str:
+def _show_setting(s: Setting, secondary: bool = False, source: bool = False, digits: int = 4) -> str:
     """A setting as a short display string: primary value and unit, the relay-side value and source if asked."""
-    text = show_value(s.value, s.unit)
+    text = show_value(s.value, s.unit, digits)
     if secondary and s.secondary is not None:
-        text += f" ({show_value(s.secondary, s.secondary_unit)} secondary)"
+        text += f" ({show_value(s.secondary, s.secondary_unit, digits)} secondary)"
     if source:
         text += f" [{s.source}]"
     return text
 
 
-def show_value(value: Any, unit: str = "") -> str:
-    """A record value as a display string: numbers to 4 significant figures with the record's (SI) unit.
+def show_value(value: Any, unit: str = "", digits: int = 4) -> str:
+    """A record value as a display string: numbers to ``digits`` significant figures with the record's (SI) unit.
 
     >>> show_value(105.63, "A"), show_value(True), show_value([{"frequency": 57.5, "time_delay": 10.0}])
     ('105.6 A', 'yes', '57.5 Hz / 10 s')
@@ -223,10 +226,10 @@ def show_value(value: Any, unit: str = "") -> str:
     if value is None:
         return "—"
     if isinstance(value, (int, float)):
-        return f"{value:.4g} {unit}".strip()
+        return f"{value:.{digits}g} {unit}".strip()
     if isinstance(value, (list, tuple)):
-        return "; ".join(" / ".join(show_value(v, _STAGE_UNITS.get(k, "")) for k, v in item.items())
-                         if isinstance(item, dict) else show_value(item) for item in value) or "none"
+        return "; ".join(" / ".join(show_value(v, _STAGE_UNITS.get(k, ""), digits) for k, v in item.items())
+                         if isinstance(item, dict) else show_value(item, "", digits) for item in value) or "none"
     return str(value)
 
 

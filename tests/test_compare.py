@@ -114,9 +114,20 @@ def thermal(pickup: float, secondary: float, source="standard", tau=612.0) -> Fu
     }, basis="")
 
 
-def test_setting_value_changes():
+def test_setting_value_changes_with_its_relay_side_value():
+    # 105.6 A and 110 A on a 150/1 A CT are 0.704 A and 0.7333 A on the relay (ratio definition)
     changes = setting_changes(record([thermal(105.6, 0.704)]), record([thermal(110.0, 0.7333)]))
-    assert changes == [Change("49.pickup_current", "105.6 A", "110 A")]
+    assert changes == [Change("49.pickup_current", "105.6 A (0.704 A secondary)", "110 A (0.7333 A secondary)")]
+
+
+def test_setting_without_a_relay_side_value():
+    changes = setting_changes(record([thermal(105.6, 0.704, tau=612.0)]), record([thermal(105.6, 0.704, tau=900.0)]))
+    assert changes == [Change("49.heating_time_constant", "612 s", "900 s")]
+
+
+def test_change_below_four_figures_is_shown_with_six():
+    changes = setting_changes(record([thermal(1.0, 1.0, tau=612.01)]), record([thermal(1.0, 1.0, tau=612.04)]))
+    assert changes == [Change("49.heating_time_constant", "612.01 s", "612.04 s")]
 
 
 def test_setting_float_noise_below_record_precision_is_no_change():
@@ -131,7 +142,7 @@ def test_only_the_secondary_changed_shows_it():
 
 
 def test_source_change_is_shown():
-    changes = setting_changes(record([thermal(105.6, 0.704)]), record([thermal(110.0, 0.733, "override")]))
+    changes = setting_changes(record([thermal(105.6, 0.704)]), record([thermal(110.0, 0.704, "override")]))
     assert changes == [Change("49.pickup_current", "105.6 A [standard]", "110 A [override]")]
 
 
