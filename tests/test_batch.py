@@ -145,6 +145,18 @@ def test_new_revision_keeps_the_earlier_sheet(plant, tmp_path, capsys):
     assert {"CW-P-201_spare_co-rev2.pdf", "CW-P-201_spare_co-rev3.pdf"} <= set(outputs(out))
 
 
+def test_only_the_newest_revision_of_a_tag_is_built(tmp_path, capsys):
+    src, out = tmp_path / "plant", tmp_path / "out"
+    pump = example("condenser-pump-motor.toml")
+    write(src / "pump.rev2.toml", pump)  # the file `relaywright revise` keeps beside revision 3
+    pump["sheet"]["revision"] = 3
+    write(src / "pump.toml", pump)
+    assert run_batch(src, out, workers=1) == 0
+    assert outputs(out) == ["CW-P-201-rev3.json", "CW-P-201-rev3.pdf", "index.pdf"]
+    text = capsys.readouterr().out
+    assert "pump.rev2.toml" in text and "older revision" in text and "revision 3 is in pump.toml" in text
+
+
 def test_bad_input_keeps_the_previous_sheet(plant, tmp_path, capsys):
     out = tmp_path / "out"
     run_batch(plant, out, workers=1)
@@ -193,8 +205,8 @@ def test_folder_without_toml_is_bad_input(tmp_path):
 
 def test_exit_code_is_the_worst_outcome():
     # DESIGN.md, exit codes: 0 done (warnings included), 1 a check failed, 2 bad input
-    assert {s: code for s, (_, code, _) in OUTCOMES.items()} == {"skipped": 0, "ok": 0, "warn": 0, "fail": 1,
-                                                                  "bad": 2}
+    assert {s: code for s, (_, code, _) in OUTCOMES.items()} == {"skipped": 0, "older": 0, "ok": 0, "warn": 0,
+                                                                  "fail": 1, "bad": 2}
     outcomes = [Outcome("a", "ok"), Outcome("b", "fail", failures=1), Outcome("c", "warn", warnings=2)]
     assert max(o.exit_code for o in outcomes) == 1
     assert summary_line(outcomes) == "3 machine files: 1 ok, 1 with warnings, 1 with failed checks, 0 bad input"

@@ -10,7 +10,8 @@ Output names are ``<tag>-rev<N>.pdf`` and ``<tag>-rev<N>.json`` (the tag made sa
 gets new files and the sheets of earlier revisions stay in OUT. A sheet is already current when its JSON record
 in OUT has the same inputs fingerprint and revision and the PDF is there; it is kept unless ``--force``. Every
 write is atomic (a temporary file and a rename), a machine whose input is bad writes nothing, and an issued sheet
-is never replaced by one with other inputs under the same revision.
+is never replaced by one with other inputs under the same revision. Of several files with one tag, only the newest
+revision is built (``relaywright revise`` keeps the earlier revision's file beside the new one).
 
 Exit code: the worst outcome (0 ok or warnings, 1 a failed check, 2 bad input).
 """
@@ -33,6 +34,7 @@ MAX_NAME = 80
 # outcome -> (summary word, exit code, order in the summary: problems last, next to the prompt)
 OUTCOMES = {
     "skipped": ("skipped, not a machine file", 0, 0),
+    "older": ("skipped, older revision", 0, 0),
     "ok": ("ok", 0, 1),
     "warn": ("warnings", 0, 2),
     "fail": ("failed checks", 1, 3),
@@ -177,9 +179,29 @@ def plan_batch(directory: Path, output: Path, force: bool = False) -> Plan:
         sheet = data.get("sheet") if isinstance(data.get("sheet"), dict) else {}
         tag = sheet.get("tag") if isinstance(sheet.get("tag"), str) else ""
         machines.append((shown, data, tag, sheet.get("revision", 0)))
+    machines, older = _latest_revisions(machines)
+    plan.settled += older
     names = output_names([(p, tag, rev) for p, _, tag, rev in machines])
     plan.tasks = [Task(p, data, names[p], str(output), force, tag) for p, data, tag, _ in machines]
     return plan
+
+
+def _latest_revisions(machines: list[tuple]) -> tuple[list[tuple], list[Outcome]]:
+    """Keep the newest revision of each tag; an earlier one (``relaywright revise`` keeps ``<name>.rev<N>.toml``
+    beside the file) is reported as skipped, and its sheet, if OUT has it, stays there."""
+    newest: dict[str, tuple[int, str]] = {}
+    for path, _, tag, rev in machines:
+        if tag and isinstance(rev, int) and not isinstance(rev, bool) and rev > newest.get(tag, (-1, ""))[0]:
+            newest[tag] = (rev, path)
+    keep, older = [], []
+    for item in machines:
+        path, _, tag, rev = item
+        if tag in newest and isinstance(rev, int) and rev < newest[tag][0]:
+            older.append(Outcome(path, "older", f"revision {rev}; revision {newest[tag][0]} is in "
+                                                f"{newest[tag][1]}", tag=tag, revision=rev))
+        else:
+            keep.append(item)
+    return keep, older
 
 
 # ---------------------------------------------------------------------------------------------------- one machine
@@ -421,7 +443,7 @@ def _write_index(outcomes: list[Outcome], output: Path) -> Path | None:
     rows = [IndexRow(path=o.path, status=o.status, tag=o.tag, description=o.description, revision=o.revision,
                      warnings=o.warnings, failures=o.failures, fingerprint=o.fingerprint,
                      sheet=f"{o.name}.pdf" if o.fingerprint else "", message=o.message)
-            for o in sorted(outcomes, key=lambda o: (o.tag or "~", o.path)) if o.status != "skipped"]
+            for o in sorted(outcomes, key=lambda o: (o.tag or "~", o.path)) if o.status not in ("skipped", "older")]
     if not rows:
         return None
     studied = [o for o in outcomes if o.fingerprint]
@@ -441,7 +463,7 @@ def summary_rows(outcomes: list[Outcome]) -> list[tuple[str, str, str, str, str]
     for o in sorted(outcomes, key=lambda o: (OUTCOMES[o.status][2], o.path)):
         word = OUTCOMES[o.status][0] + (" (already current)" if o.current else "")
         findings = findings_text(o.warnings, o.failures) if o.fingerprint else ""
-        detail = o.message if o.status == "bad" else f"{o.name}.pdf" if o.name else ""
+        detail = o.message if o.status in ("bad", "older") else f"{o.name}.pdf" if o.name else ""
         rows.append((o.path, o.tag, word, findings, detail))
     return rows
 
@@ -450,12 +472,14 @@ def summary_line(outcomes: list[Outcome]) -> str:
     """One sentence of totals, e.g. ``3 machines: 1 ok, 1 with warnings, 1 bad input; 1 file skipped``."""
     count = {s: sum(1 for o in outcomes if o.status == s) for s in OUTCOMES}
     current = sum(1 for o in outcomes if o.current)
-    machines = len(outcomes) - count["skipped"]
+    machines = len(outcomes) - count["skipped"] - count["older"]
     parts = [f"{count['ok']} ok", f"{count['warn']} with warnings", f"{count['fail']} with failed checks",
              f"{count['bad']} bad input"]
     line = f"{machines} machine file{'s' if machines != 1 else ''}: " + ", ".join(parts)
     if current:
         line += f"; {current} already current (kept; --force rebuilds them)"
+    if count["older"]:
+        line += f"; {count['older']} older revision{'s' if count['older'] != 1 else ''} skipped"
     if count["skipped"]:
         line += f"; {count['skipped']} other TOML file{'s' if count['skipped'] != 1 else ''} skipped"
     return line
@@ -468,7 +492,7 @@ def print_summary(outcomes: list[Outcome], output: Path, index: Path | None, ela
     from rich.table import Table
     from rich.text import Text
 
-    styles = {"ok": "", "warn": "yellow", "fail": "bold red", "bad": "bold red", "skipped": "dim"}
+    styles = {"ok": "", "warn": "yellow", "fail": "bold red", "bad": "bold red", "skipped": "dim", "older": "dim"}
     con = Console(highlight=False)
     table = Table(title="Batch summary", title_justify="left", box=box.SIMPLE_HEAD, pad_edge=False,
                   collapse_padding=True)
