@@ -196,6 +196,18 @@ def test_all_good_exits_zero(tmp_path, capsys):
     assert "1 other TOML file skipped" in capsys.readouterr().out
 
 
+def test_unreadable_toml_is_bad_input_only_when_it_looks_like_a_machine_file(tmp_path, capsys):
+    src = tmp_path / "plant"
+    write(src / "pump.toml", example("condenser-pump-motor.toml"))
+    (src / "cut.toml").write_text('format = "relaywright.machine/1"\n[sheet\ntag = "X"\n', "utf-8")
+    (src / "other.toml").write_text("this is = = not toml\n", "utf-8")
+    (src / "latin1.toml").write_bytes(b'name = "caf\xe9"\n')
+    assert run_batch(src, tmp_path / "out", workers=1) == 2
+    rows = {line.split()[0]: line for line in capsys.readouterr().out.splitlines() if ".toml" in line}
+    assert "bad input" in rows["cut.toml"] and "not valid TOML" in rows["cut.toml"]
+    assert "not a machine file" in rows["other.toml"] and "not a machine file" in rows["latin1.toml"]
+
+
 def test_folder_without_toml_is_bad_input(tmp_path):
     with pytest.raises(InputError, match="no .toml files found"):
         run_batch(tmp_path, tmp_path / "out")

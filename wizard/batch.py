@@ -159,6 +159,16 @@ def is_machine_data(data: dict) -> bool:
     return fmt is None and isinstance(data.get("machine"), dict)
 
 
+def _mentions_machine(path: Path) -> bool:
+    """Whether a file that cannot be read as TOML still looks like a machine file (its format key or [machine])."""
+    try:
+        with path.open("rb") as fh:
+            head = fh.read(65536)
+    except OSError:
+        return True  # cannot tell: report it rather than pass over it
+    return MACHINE_FORMAT_PREFIX.encode() in head or re.search(rb"(?m)^\s*\[machine\]", head) is not None
+
+
 def plan_batch(directory: Path, output: Path, force: bool = False) -> Plan:
     """Read every TOML file under ``directory`` once and decide what each becomes."""
     from machines.errors import InputError
@@ -170,8 +180,11 @@ def plan_batch(directory: Path, output: Path, force: bool = False) -> Plan:
         shown = path.relative_to(directory).as_posix()
         try:
             data = parse_toml(read_text(path), shown)
-        except InputError as e:
-            plan.settled.append(Outcome(shown, "bad", str(e)))
+        except InputError as e:  # unreadable, too large, not UTF-8 or not TOML: whose file is it?
+            if _mentions_machine(path):
+                plan.settled.append(Outcome(shown, "bad", e.detail))  # the file is named in its own column
+            else:
+                plan.settled.append(Outcome(shown, "skipped", f"not a machine file ({e.detail})"))
             continue
         if not is_machine_data(data):
             plan.settled.append(Outcome(shown, "skipped", "no format = \"relaywright.machine/1\""))
