@@ -440,3 +440,45 @@ def test_example_file_runs():
     rec = run_study(case, w)
     assert rec.function("49") and rec.derived["locked_rotor_current"].value == pytest.approx(6.2 * 186.0)
     assert case.machine.rated_output / HP == pytest.approx(1500.0)
+
+
+# ---------------------------------------------------------------------------------------------------- REFERENCE 3.4, 4.2
+
+
+def test_stall_window_reference_values():
+    from machines.protection.locked_rotor import delay_window, pickup_ceiling
+    # IEEE C37.96-style rule [P], check value REFERENCE 3.4: hot stall 10 s, ×1.1 / ×0.9, V = 1.0 → 5.952 … 9.000 s
+    lo, hi = delay_window(5.411, 10.0)
+    assert (lo, hi) == (pytest.approx(5.952, abs=5e-4), pytest.approx(9.000))
+    # check value REFERENCE 3.4: at V = 0.85 (8.478 s) → 9.326 > 9.000 s → no window → speed switch
+    lo, hi = delay_window(8.478, 10.0)
+    assert lo == pytest.approx(9.326, abs=5e-4) and lo > hi
+    # check value REFERENCE 3.4: pickup upper bound 0.8 × 6.276 × 0.85 = 4.268 pu
+    assert pickup_ceiling(6.276, 0.85) == pytest.approx(4.268, abs=5e-4)
+
+
+@pytest.mark.parametrize("margin, primary, secondary", [
+    # common practice [M][P], check values REFERENCE 4.2: I_LR 437.2 A, CT 400/5
+    (1.6, 699.5, 8.744), (1.8, 787.0, 9.837), (2.0, 874.4, 10.93),
+])
+def test_50p_reference_values(margin, primary, secondary):
+    from machines.model import Ratio
+    assert margin * 437.2 == pytest.approx(primary, abs=0.05)
+    assert Ratio(400.0, 5.0).to_secondary(margin * 437.2) == pytest.approx(secondary, rel=5e-4)
+
+
+def test_50p_default_margin_and_block_reference():
+    from machines.protection.short_circuit import ASYMMETRY_MARGIN, block_threshold
+    # REFERENCE 4.1: 1.6–2.0 × I_LR with no delay; we take 1.8, above the full-offset first-cycle factor √3
+    assert 1.6 <= ASYMMETRY_MARGIN <= 2.0 and ASYMMETRY_MARGIN > math.sqrt(3)
+    # check value REFERENCE 4.2: contactor interrupting 4 kA, 10 % margin → block trips above 3600 A
+    assert block_threshold(4000.0) == pytest.approx(3600.0)
+
+
+def test_hot_start_lengthens_computed_time_constant():
+    # REFERENCE 2.2: a τ fitted to the hot stall trips a start that lasts about as long as the hot stall time;
+    # the rule lengthens it and says so
+    rec = study(load__inertia="400 kg*m^2")
+    assert rec.derived["acceleration_time"].value > 14.0
+    assert any("lengthened beyond the hot-stall fit" in m for m in messages(rec, "warn", "49"))
+    assert not any("trip during a normal start" in m for m in messages(rec, "fail", "49"))
