@@ -482,3 +482,24 @@ def test_hot_start_lengthens_computed_time_constant():
     assert rec.derived["acceleration_time"].value > 14.0
     assert any("lengthened beyond the hot-stall fit" in m for m in messages(rec, "warn", "49"))
     assert not any("trip during a normal start" in m for m in messages(rec, "fail", "49"))
+
+
+def test_50g_charging_floor_reference():
+    # REFERENCE 7.2 [P], check value REFERENCE 7.3: own 3·I_C0 = 0.4210 A → 50G pickup ≥ 0.8421 A (×2)
+    from machines.protection.motor_earth_fault import CHARGING_MARGIN
+    rec = study(grounding__circuit_capacitance="0.155 uF", **{"overrides__50G.pickup_current": "0.8 A"})
+    assert CHARGING_MARGIN * rec.derived["charging_current"].value == pytest.approx(0.8421, abs=5e-4)
+    assert any("below twice the circuit's own charging current" in m for m in messages(rec, "fail", "50G"))
+
+
+def test_study_is_fast():
+    # issue 3: a motor study takes under 20 ms (benchmarks/bench_study.py measures the median)
+    import time
+    case, w = case_from_dict(motor_data())
+    run_study(case, w)
+    times = []
+    for _ in range(15):
+        t0 = time.perf_counter()
+        run_study(case, w)
+        times.append(time.perf_counter() - t0)
+    assert sorted(times)[7] < 0.020

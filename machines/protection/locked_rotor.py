@@ -96,7 +96,11 @@ def settings(ctx: StudyContext) -> FunctionSettings:
                "thermal replica and the maker's acceleration thermal-limit curve")
     switch, sw_src = ctx.choose(FID, "speed_switch_required", switch0, "boolean", "", "common-practice")
     delay, d_src = ctx.choose(FID, "time_delay", delay0, "time", "s", "common-practice")
-    if not window:
+    if not b.start_min.accelerates:
+        checks.append(Check("warn", "The motor does not accelerate at the minimum starting voltage, so no stall delay "
+                                    "can separate a start from a stall; the delay shown is the speed-switch-supervised "
+                                    "one."))
+    elif not window:
         checks.append(Check("warn", f"The acceleration time at minimum voltage ({t_acc:.1f} s) leaves no delay "
                                     f"window below 0.9 × the hot safe stall time ({d_hi:.1f} s): a zero-speed "
                                     "switch is required, and the maker must confirm the acceleration thermal "

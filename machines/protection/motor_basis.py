@@ -9,7 +9,7 @@ from __future__ import annotations
 import math
 from dataclasses import dataclass
 
-from machines.model import MachineCase, motor_poles, motor_rated_current, rated_slip, synchronous_speed
+from machines.model import MachineCase, motor_poles, rated_slip, synchronous_speed
 from machines.protection.base import StudyContext
 from machines.record import Check, Setting
 from machines.standards import fault_current as fc
@@ -51,7 +51,11 @@ class MotorBasis:
 
 
 def _source(case: MachineCase) -> tuple[float | None, float | None, float | None, str]:
-    """(source impedance for the start, max and min three-phase fault current, how they were found)."""
+    """(source impedance for the start, max and min three-phase fault current, how they were found).
+
+    The start is studied on the weakest source: the source impedance when given, else the minimum fault level,
+    else the fault level.
+    """
     s, vn = case.supply, case.supply.nominal_voltage
     fmax = fc.three_phase_fault_current(s.fault_level, vn) if s.fault_level else None
     fmin = fc.three_phase_fault_current(s.minimum_fault_level, vn) if s.minimum_fault_level else None
@@ -166,9 +170,10 @@ def _record(ctx: StudyContext, b: MotorBasis, v_min_source) -> None:
 def _start_checks(b: MotorBasis, m, checks: list[Check]) -> None:
     s = b.start_min
     if not s.accelerates:
+        where = ("at standstill (the motor cannot break the load away)" if s.stall_speed < 0.005 else
+                 f"at {s.stall_speed:.1%} of synchronous speed, below breakdown speed")
         checks.append(Check("fail", f"The motor does not accelerate at the minimum starting voltage "
-                                    f"{b.minimum_voltage:.3f} pu: load torque meets motor torque at "
-                                    f"{s.stall_speed:.1%} of synchronous speed, below breakdown speed. Raise the "
+                                    f"{b.minimum_voltage:.3f} pu: load torque meets motor torque {where}. Raise the "
                                     "starting voltage (stronger source), reduce the load during the start or ask "
                                     "the maker for a motor with more torque."))
     elif s.acceleration_time > m.safe_stall_time_hot:
@@ -191,4 +196,4 @@ def basis_of(ctx: StudyContext) -> MotorBasis:
     return ctx.extras["motor"]
 
 
-__all__ = ["MotorBasis", "motor_basis", "chosen", "basis_of", "motor_rated_current"]
+__all__ = ["MotorBasis", "motor_basis", "chosen", "basis_of"]

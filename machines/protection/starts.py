@@ -46,10 +46,13 @@ def settings(ctx: StudyContext) -> FunctionSettings:
         mg10 = mg10_starts_per_hour(b.horsepower, b.poles, b.load_wk2)
     except ValueError:
         pass
-    t0 = max(wait if math.isfinite(wait) else 0.0, MIN_BETWEEN, mg10[1] if mg10 else 0.0)
-    t_between, t_src = ctx.choose(FID, "minimum_time_between_starts", t0, "time", "s", "derived")
+    candidates = [(wait if math.isfinite(wait) else 0.0, "derived"), (MIN_BETWEEN, "common-practice"),
+                  (mg10[1] if mg10 else 0.0, "standard")]
+    t0, t0_src = max(candidates, key=lambda c: c[0])
+    t_between, t_src = ctx.choose(FID, "minimum_time_between_starts", t0, "time", "s", t0_src)
     if not math.isfinite(d_theta):
-        checks.append(Check("fail", "The motor does not accelerate at minimum voltage: no start count can be set."))
+        checks.append(Check("warn", "The motor does not accelerate at minimum voltage: the start count cannot be "
+                                    "checked against the rotor's heat."))
     else:
         if n_cold * d_theta > 1.0:
             checks.append(Check("warn", f"{n_cold} starts from cold use {n_cold * d_theta:.0%} of the rotor's stall "
