@@ -71,7 +71,6 @@ class Outcome:
     fingerprint: str = ""
     warnings: int = 0
     failures: int = 0
-    peak_rss_kb: int = 0  #: the worker's peak resident memory after this job (for the benchmark)
 
     @property
     def exit_code(self) -> int:
@@ -230,18 +229,15 @@ def process_machine(task: Task) -> Outcome:
     from machines.errors import InputError
 
     try:
-        outcome = _process(task)
+        return _process(task)
     except InputError as e:
-        outcome = Outcome(task.path, "bad", str(e), tag=task.tag)
-    except OSError as e:
-        outcome = Outcome(task.path, "bad", f"{e.filename or task.out}: cannot write ({e.strerror or e}); "
-                                           "earlier files were kept", tag=task.tag)
+        return Outcome(task.path, "bad", str(e), tag=task.tag)
+    except OSError as e:  # write_atomic leaves the file it was replacing as it was
+        return Outcome(task.path, "bad", f"{e.filename or task.out}: cannot write ({e.strerror or e})", tag=task.tag)
     except Exception as e:  # a bug must not stop the other machines, nor print a traceback
         first = str(e).splitlines()[0] if str(e) else ""
-        outcome = Outcome(task.path, "bad", f"could not complete ({type(e).__name__}: {first}); nothing was "
-                                            "written; please report this with the input file", tag=task.tag)
-    outcome.peak_rss_kb = _peak_rss_kb()
-    return outcome
+        return Outcome(task.path, "bad", f"could not complete ({type(e).__name__}: {first}); nothing was "
+                                         "written; please report this with the input file", tag=task.tag)
 
 
 def _process(task: Task) -> Outcome:
@@ -260,7 +256,8 @@ def _process(task: Task) -> Outcome:
         same = old.get("inputs_fingerprint") == fingerprint
         if same and pdf.is_file() and not task.force:
             return _outcome(task, old, current=True)
-        if not same and old.get("sheet", {}).get("status") == "issued":
+        issued = isinstance(old.get("sheet"), dict) and old["sheet"].get("status") == "issued"
+        if not same and issued:
             raise InputError("sheet.revision", f"revision {case.sheet.revision} of {case.sheet.tag} was issued with "
                              f"other inputs ({record_path.name}); raise sheet.revision for the new inputs; "
                              "nothing was written")
@@ -292,21 +289,12 @@ def _outcome(task: Task, record: dict, current: bool) -> Outcome:
     for f in record.get("functions", []):
         statuses += [c.get("status") for c in f.get("checks", [])]
     warnings, failures = statuses.count("warn"), statuses.count("fail")
-    sheet = record.get("sheet", {})
+    sheet = record.get("sheet") if isinstance(record.get("sheet"), dict) else {}
     return Outcome(task.path, "fail" if failures else "warn" if warnings else "ok", name=task.name, current=current,
                    tag=record.get("tag", ""), description=sheet.get("description", ""),
                    site=sheet.get("site", ""), page_size=sheet.get("page_size", ""),
                    revision=record.get("revision"), fingerprint=record.get("inputs_fingerprint", ""),
                    warnings=warnings, failures=failures)
-
-
-def _peak_rss_kb() -> int:
-    try:
-        import resource
-
-        return resource.getrusage(resource.RUSAGE_SELF).ru_maxrss
-    except (ImportError, OSError):  # pragma: no cover - not on every platform
-        return 0
 
 
 # ---------------------------------------------------------------------------------------------------- the batch
@@ -397,11 +385,11 @@ def _run_pool(tasks: list[Task], n: int, done, job=process_machine) -> None:
         pool = multiprocessing.get_context("spawn").Pool(n, initializer=_init_worker)
     finally:
         signal.signal(signal.SIGINT, previous)
+    workers = {p.pid for p in multiprocessing.active_children()}  # the pool starts its workers at once
     finished: set[str] = set()
     lost = 0
     try:
         results = pool.imap_unordered(job, tasks, chunksize=1)
-        workers = {p.pid for p in multiprocessing.active_children()}
         while len(finished) + lost < len(tasks):
             try:
                 outcome = results.next(timeout=0.5)
