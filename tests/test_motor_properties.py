@@ -92,7 +92,7 @@ def _replica_peak(start, pickup, tau, theta0) -> float:
     return peak
 
 
-PROFILE = settings(max_examples=60, deadline=None, derandomize=True,
+PROFILE = settings(max_examples=150, deadline=None, derandomize=True,
                    suppress_health_check=[HealthCheck.too_slow])
 
 
@@ -149,7 +149,7 @@ def test_protection_invariants(data):
                 assert x > 0 and y > 0 and math.isfinite(x) and math.isfinite(y)
 
 
-@settings(max_examples=25, deadline=None, derandomize=True, suppress_health_check=[HealthCheck.too_slow])
+@settings(max_examples=40, deadline=None, derandomize=True, suppress_health_check=[HealthCheck.too_slow])
 @given(motors(), st.floats(0.2, 3.0))
 def test_overridden_values_are_checked(data, factor):
     """An engineer's value replaces the computed one and is checked like it (DESIGN.md)."""

@@ -503,3 +503,11 @@ def test_study_is_fast():
         run_study(case, w)
         times.append(time.perf_counter() - t0)
     assert sorted(times)[7] < 0.020
+
+
+def test_fused_contactor_block_override_above_rating_fails():
+    # REFERENCE 4.1 (UL 347 practice): the contactor must never be asked to break more than its rating
+    rec = study(supply__starter="fused-contactor", supply__contactor_breaking_current="4 kA",
+                supply__fuse_rating="200 A", **{"overrides__50P.trip_block_current": "4200 A"})
+    assert rec.function("50P").settings["trip_block_current"].source == "override"
+    assert any("not below the contactor's breaking current" in m for m in messages(rec, "fail", "50P"))

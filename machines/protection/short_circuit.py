@@ -121,10 +121,15 @@ def _fused(ctx: StudyContext, s: dict, checks: list[Check], enabled: bool, picku
                                     "which relay trips must be blocked cannot be set."))
         block = None
     else:
-        block = block_threshold(sup.contactor_breaking_current)
-        s["trip_block_current"] = current_setting(block, ctx.ct, "common-practice",
-                                                  "Block all relay trips above",
-                                                  note="0.9 × contactor breaking current")
+        block, b_src = ctx.choose(FID, "trip_block_current", block_threshold(sup.contactor_breaking_current),
+                                  "current", "A", "common-practice")
+        s["trip_block_current"] = current_setting(block, ctx.ct, b_src, "Block all relay trips above",
+                                                  note=f"{block / sup.contactor_breaking_current:.0%} of the "
+                                                       "contactor breaking current")
+        if block >= sup.contactor_breaking_current:
+            checks.append(Check("fail", f"The trip block threshold {block:.0f} A is not below the contactor's breaking "
+                                        f"current {sup.contactor_breaking_current:.0f} A: the relay could ask the "
+                                        "contactor to break a current it cannot."))
         chosen(ctx, FID)["block"] = block
         if enabled and pickup >= block:
             checks.append(Check("fail", f"50P is in service at {pickup:.0f} A, at or above the trip block threshold "
