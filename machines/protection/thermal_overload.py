@@ -34,12 +34,8 @@ TEST_MULTIPLES = (2.0, 3.0, 5.0)  #: test currents, multiples of the pickup [-]
 
 
 def replica_through_start(start, pickup: float, tau: float, initial_level: float) -> tuple[float, float]:
-    """(highest level during the start, level at its end) of the replica run through a simulated start [-]."""
-    if start.times.size < 2 or not start.accelerates:
-        t_end = 3600.0
-        lvl = thermal_level_profile([0.0, t_end], [start.currents[-1], start.currents[-1]], pickup, tau,
-                                    initial_level)
-        return float(lvl.max()), float(lvl[-1])
+    """(highest level during the start, level at its end) of the replica run through a simulated start that
+    accelerates [-]."""
     lvl = thermal_level_profile(start.times, start.currents, pickup, tau, initial_level)
     return float(lvl.max()), float(lvl[-1])
 
