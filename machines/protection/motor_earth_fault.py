@@ -23,6 +23,7 @@ LRG_MAX_FRACTION = 0.20  #: pickup above this × fault current covers too little
 SOLID_FRACTION_FLC = 0.20  #: pickup on solidly grounded supplies [× FLC] [P]
 TRIP_DELAY = 0.1  #: [s] (REFERENCE 7.2: 0.1–0.5 s) [P]
 ALARM_DELAY = 1.0  #: [s] [P]
+CT_LOW_FRACTION = 0.05  #: pickups below this × CT primary need a check of relay range and CT accuracy [-] [P]
 ALARM_METHODS = ("high-resistance", "distribution-transformer", "ungrounded")
 
 
@@ -83,6 +84,10 @@ def settings(ctx: StudyContext) -> FunctionSettings:
                                       f"({i_ef:.1f} A)."))
     elif g.method == "low-resistance":
         checks.append(Check("warn", "grounding.fault_current_limit is missing: the 50G sensitivity cannot be judged."))
+    if pickup < CT_LOW_FRACTION * ct.primary:
+        checks.append(Check("warn", f"The 50G pickup {pickup:.2f} A is only {pickup / ct.primary:.1%} of the "
+                                    f"{ct.primary:.0f} A CT primary: check the relay's sensitive earth-fault range "
+                                    "and the CT's accuracy at that current, or use a lower-ratio core-balance CT."))
     if alarm_only:
         checks.append(Check("ok", f"{g.method.capitalize()} supply: the earth-fault current is small and the system "
                                   "may run with one earth fault, so 50G alarms only; locate the fault and trip by "
