@@ -6,6 +6,7 @@ import math
 
 import pytest
 
+from machines.errors import InputError
 from machines.files import case_from_dict
 from machines.protection import frequency, generator
 from machines.standards.ct_saturation import c37110_saturation_index
@@ -390,3 +391,27 @@ def test_prepare_keeps_the_basis():
     assert basis.impedance_factor == pytest.approx(1000 / 120)
     assert basis.x2 == 0.2 and basis.x2_entered
     assert ctx.extras["checks"] == []
+
+
+def test_51v_check_uses_the_current_the_fault_voltage_allows():
+    # [derived] a fault that leaves 0.4 pu at the terminals is fed with (1 − 0.4)/X_d = 0.3333 pu = 1395 A, less
+    # than the terminal-fault E/X_d of REFERENCE 9.6
+    data = generator_data()
+    data["overrides"] = {"51V.check_voltage": "0.4 pu"}
+    msg = next(c.message for c in _run(data).function("51V").checks if c.status == "fail")
+    assert "1395 A" in msg
+
+
+def test_bad_curve_override_names_the_key():
+    data = generator_data()
+    data["overrides"] = {"51V.curve": "IEC-XYZ"}
+    with pytest.raises(InputError, match="overrides.51V.curve: expected one of"):
+        _run(data)
+
+
+def test_ungrounded_machine_has_no_resistor():
+    record = study(**{"grounding.method": "ungrounded", "grounding.transformer_ratio": None})
+    fs = record.function("59N")
+    assert "grounding_resistor" not in fs.settings and "resistor_current" not in record.derived
+    assert "warn" in _statuses(fs, "Ungrounded")
+    assert record.function("27TN") is None

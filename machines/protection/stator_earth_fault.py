@@ -17,7 +17,7 @@ from machines.model import Ratio
 from machines.protection.base import StudyContext, current_setting, timed_test_point, voltage_setting
 from machines.record import Check, FunctionSettings, Setting
 from machines.standards import grounding as gnd
-from machines.standards.inverse_time import curve_constants, inverse_operate_time, time_multiplier_for
+from machines.standards.inverse_time import CURVES, curve_constants, inverse_operate_time, time_multiplier_for
 
 HIGH_RESISTANCE = ("distribution-transformer", "high-resistance", "ungrounded")
 COVERAGE = 0.95  #: REFERENCE 7.1: 59N at 5 % of V_LN (value from memory)
@@ -55,6 +55,11 @@ def _resistor(ctx: StudyContext, checks: list[Check]) -> tuple[float | None, dic
     n = _turns(ctx)
     c0 = basis.capacitance
     out: dict[str, Setting] = {}
+    if g.method == "ungrounded":
+        return None, out
+    if g.method == "distribution-transformer" and g.transformer_ratio is None:
+        checks.append(Check("warn", "grounding.transformer_ratio is missing: the resistor is sized as if it sat "
+                                    "directly in the neutral."))
     limit = None
     if c0 is None:
         checks.append(Check("warn", "No capacitance data (machine.stator_capacitance, grounding.circuit_capacitance, "
@@ -81,11 +86,10 @@ def _resistor(ctx: StudyContext, checks: list[Check]) -> tuple[float | None, dic
         r_n, src, label = limit, "standard", "Grounding resistor (R_N = X_C0/3)"
     else:
         return None, out
-    if g.method != "ungrounded":
-        out["grounding_resistor"] = Setting(r_n, "ohm", src, secondary=r_n / (n * n) if n != 1 else None,
-                                            secondary_unit="ohm" if n != 1 else "", label=label,
-                                            note="secondary: on the grounding transformer's secondary"
-                                            if n != 1 else "in the neutral")
+    out["grounding_resistor"] = Setting(r_n, "ohm", src, secondary=r_n / (n * n) if n != 1 else None,
+                                        secondary_unit="ohm" if n != 1 else "", label=label,
+                                        note="secondary: on the grounding transformer's secondary"
+                                        if n != 1 else "in the neutral")
     return r_n, out
 
 
@@ -254,7 +258,8 @@ def neutral_overcurrent(ctx: StudyContext) -> FunctionSettings | None:
     curve = "IEEE-VI" if case.study.practice == "IEEE" else "IEC-VI"
     pickup, p_src = ctx.choose("51N", "pickup_current", NEUTRAL_OC_FRACTION * i_g, "current", "A", "common-practice")
     curve, c_src = ctx.choose("51N", "curve", curve, "text", "", "standard")
-    curve_constants(curve)
+    if curve not in CURVES:
+        raise InputError("overrides.51N.curve", f"expected one of {', '.join(CURVES)}, got {curve!r}")
     mult_key = "time_dial" if curve.startswith("IEEE") else "time_multiplier"
     m_at_fault = i_g / pickup
     tms0 = time_multiplier_for(NEUTRAL_OC_TARGET, m_at_fault, curve) if m_at_fault > 1.0 else 1.0

@@ -13,7 +13,7 @@ from machines.errors import InputError
 from machines.protection.base import StudyContext, current_setting, timed_test_point
 from machines.record import Check, FunctionSettings, Setting
 from machines.standards.generator_capability import restrained_pickup
-from machines.standards.inverse_time import curve_constants, inverse_operate_time, time_multiplier_for
+from machines.standards.inverse_time import CURVES, curve_constants, inverse_operate_time, time_multiplier_for
 
 FID = "51V"
 PICKUP = 1.5  #: [pu of rated current] at rated voltage (REFERENCE 9.4, IEEE C37.102; value from memory)
@@ -60,6 +60,8 @@ def settings(ctx: StudyContext) -> FunctionSettings:
                                                           f"{floor:g}")
     curve0 = "IEEE-VI" if case.study.practice == "IEEE" else "IEC-VI"
     curve, c_src = ctx.choose(FID, "curve", curve0, "text", "", "common-practice")
+    if curve not in CURVES:
+        raise InputError("overrides.51V.curve", f"expected one of {', '.join(CURVES)}, got {curve!r}")
     constants = curve_constants(curve)
     key = "time_dial" if constants.family == "IEEE" else "time_multiplier"
     m_target = basis.transient_fault_current / (floor * pickup)
@@ -67,11 +69,19 @@ def settings(ctx: StudyContext) -> FunctionSettings:
     tms, t_src = ctx.choose(FID, key, tms0, "per_unit", "", "common-practice")
     v_check, v_src = ctx.choose(FID, "check_voltage", CHECK_VOLTAGE, "per_unit", "", "common-practice")
 
+    if not 0.0 <= v_check < 1.0:
+        raise InputError("overrides.51V.check_voltage", f"expected a terminal voltage during the fault from 0 to "
+                                                        f"below 1 pu, got {v_check:g}")
     i_sus = basis.sustained_fault_current
+    # A fault that leaves V at the terminals is fed through X_d by E = 1 pu: I = (1 − V)/X_d (reactive circuit);
+    # at a terminal fault (V = 0) this is E/X_d.
+    i_fault = (1.0 - v_check) * i_sus
     p_fault = restrained_pickup(pickup, v_check, floor)
-    ratio = i_sus / p_fault
+    ratio = i_fault / p_fault
+    at = (f"E/X_d = {i_sus:.4g} A ({i_sus / ir:.4g} pu)" if v_check == 0.0 else
+          f"(1 − V)·E/X_d = {i_fault:.4g} A (E/X_d = {i_sus:.4g} A at a terminal fault)")
     text = (f"At {v_check:.2g} pu terminal voltage the restrained pickup is {p_fault:.4g} A; the sustained fault "
-            f"current without field forcing is E/X_d = {i_sus:.4g} A ({i_sus / ir:.4g} pu), ratio {ratio:.3g}")
+            f"current without field forcing is {at}, ratio {ratio:.3g}")
     if ratio >= MARGIN:
         checks.append(Check("ok", text + f" ≥ {MARGIN:g}."))
     elif ratio > 1.0:
@@ -92,7 +102,7 @@ def settings(ctx: StudyContext) -> FunctionSettings:
     if ratio > 1.0:
         t_sus = inverse_operate_time(ratio, curve, tms)
         checks.append(Check("ok" if t_sus < 30.0 else "warn",
-                            f"Operate time at the sustained fault current, fully restrained: {t_sus:.3g} s."))
+                            f"Operate time at that sustained fault current: {t_sus:.3g} s."))
     checks.append(Check("ok", "Coordinate the operate time with the slowest downstream backup protection (grading "
                               "margin 0.2–0.4 s); the time multiplier here gives "
                               f"{TARGET_TIME:g} s at the transient terminal-fault current."))
