@@ -20,6 +20,7 @@ from machines.standards.thermal_replica import cooling_time, heat_stored_at_rate
 FID = "66"
 START_MARGIN = 1.1  #: m in θ + m·Δθ ≤ 1 (REFERENCE 2.3: 1.1–1.25) [P]
 MIN_BETWEEN = 60.0  #: shortest time between starts proposed [s] [P]
+COOL_TO_AMBIENT = 3.0  #: cooling time constants to reach ambient (95 % of the heat gone) [-]
 
 
 def settings(ctx: StudyContext) -> FunctionSettings:
@@ -46,6 +47,12 @@ def settings(ctx: StudyContext) -> FunctionSettings:
         mg10 = mg10_starts_per_hour(b.horsepower, b.poles, b.load_wk2)
     except ValueError:
         pass
+    if math.isfinite(d_theta) and not math.isfinite(wait):
+        wait = COOL_TO_AMBIENT * tau_c
+        checks.append(Check("warn", f"One start uses {d_theta:.0%} of the rotor's stall heat: even a cold rotor "
+                                    "leaves no margin for another start, so the next start waits for the motor to "
+                                    f"cool to ambient ({COOL_TO_AMBIENT:g} × the cooling time constant). Confirm the "
+                                    "start duty with the maker."))
     candidates = [(wait if math.isfinite(wait) else 0.0, "derived"), (MIN_BETWEEN, "common-practice"),
                   (mg10[1] if mg10 else 0.0, "standard")]
     t0, t0_src = max(candidates, key=lambda c: c[0])
@@ -63,7 +70,7 @@ def settings(ctx: StudyContext) -> FunctionSettings:
         if t_between + 1e-6 < wait:
             checks.append(Check("warn", f"The minimum time between starts {t_between / 60:.1f} min is shorter than the "
                                         f"{wait / 60:.1f} min the rotor needs to cool for one more start."))
-        else:
+        elif not checks:
             checks.append(Check("ok", f"One start uses {d_theta:.0%} of the cold stall heat; after a start from hot "
                                       f"the rotor needs {wait / 60:.1f} min at standstill before the next."))
     s = {
