@@ -10,7 +10,11 @@ Rule:
   from cold to 51LR, whose delay is below the hot (and so the cold) safe stall time. The record shows the operate
   times at locked-rotor current from cold and hot with their margins.
 - Cooling (standstill) time constant: the maker's, else 3 × heating (REFERENCE 2.3: 2–6 × [P]).
-- The replica is run through the computed start at minimum voltage, cold and hot; a trip there fails the check.
+  When a start from hot at minimum voltage would use more than 90 % of the capacity left by that fitted τ, the
+  computed τ is lengthened until it does not (a warning says so; the hot stall is then 51LR's alone).
+- The replica is run through the computed starts (minimum and computed voltage), cold and hot; a trip there (with
+  a maker's or overridden τ) fails the check. The alarm level (95 %) must lie above the level at service-factor
+  load.
 """
 
 from __future__ import annotations
