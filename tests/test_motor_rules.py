@@ -83,6 +83,7 @@ def test_ids_and_required_keys():
 
 
 def test_secondary_values_through_cts():
+    # secondary = primary / ratio (IEEE C57.13 ratio definition): 100/5, 50/5, 4200/120
     rec = study()
     p = rec.function("49").settings["pickup_current"]
     assert p.secondary == pytest.approx(p.value / 20.0)
@@ -167,6 +168,7 @@ def test_49_short_time_constant_trips_start():
 
 
 def test_maker_time_constant_is_used():
+    # DESIGN.md: the maker's data take precedence over a fitted value
     rec = study(machine__heating_time_constant="40 min")
     s = rec.function("49").settings["heating_time_constant"]
     assert s.value == pytest.approx(2400.0) and s.source == "maker-data"
@@ -197,6 +199,7 @@ def test_acceleration_longer_than_hot_stall_needs_speed_switch():
 
 
 def test_speed_switch_override_false_fails():
+    # REFERENCE 3.2 [P]: with no delay window a zero-speed switch is needed; an override cannot remove the need
     rec = study(load__inertia="400 kg*m^2", **{"overrides__51LR.speed_switch_required": "false"})
     assert any("speed_switch_required was set false" in m for m in messages(rec, "fail", "51LR"))
 
@@ -250,6 +253,7 @@ def test_code_letter_instead_of_current():
 
 
 def test_code_letter_v_warns():
+    # NEMA MG 1 10.37.2: code V is "22.4 kVA/hp and up", no upper bound
     rec = study(machine__locked_rotor_current=None, machine__locked_rotor_code="V")
     assert any("Code letter V has no upper bound" in m for m in messages(rec, "warn"))
 
@@ -286,12 +290,14 @@ def test_fused_contactor_complete_data():
 
 
 def test_fused_contactor_missing_fuse_data_warns():
+    # REFERENCE 4.1 (UL 347 practice [F-v][P]): take-over needs the fuse and the contactor data
     rec = study(supply__starter="fused-contactor")
     assert any("take-over cannot be judged" in m for m in messages(rec, "warn", "50P"))
     assert any("block" in m for m in messages(rec, "warn", "50P"))
 
 
 def test_fused_contactor_50p_enabled_above_block_fails():
+    # REFERENCE 4.1 [P]: an enabled 50P must sit below the trip block threshold
     rec = study(supply__starter="fused-contactor", supply__contactor_breaking_current="4 kA",
                 supply__fuse_rating="200 A", **{"overrides__50P.enabled": "true", "overrides__50P.pickup_current": "3800 A"})
     assert any("at or above the trip block threshold" in m for m in messages(rec, "fail", "50P"))
@@ -301,6 +307,7 @@ def test_fused_contactor_50p_enabled_above_block_fails():
 
 
 def test_fused_contactor_that_cannot_break_locked_rotor_current():
+    # REFERENCE 4.1 [P]: the contactor must interrupt at least the locked-rotor current
     rec = study(supply__starter="fused-contactor", supply__contactor_breaking_current="0.4 kA",
                 supply__fuse_rating="200 A")
     assert any("cannot interrupt a stalled motor" in m for m in messages(rec, "fail", "50P"))
@@ -331,6 +338,7 @@ def test_50g_low_resistance():
 
 
 def test_50g_high_resistance_is_alarm_only():
+    # REFERENCE 7.2 [P][M]: on HRG systems choose between alarm and selective trip; we alarm
     rec = study(grounding__method="high-resistance", grounding__fault_current_limit="5 A")
     f = rec.function("50G")
     assert f.settings["action"].value == "alarm"
@@ -338,6 +346,7 @@ def test_50g_high_resistance_is_alarm_only():
 
 
 def test_50g_pickup_below_charging_floor_fails():
+    # REFERENCE 7.2 [P]: pickup above twice the circuit's own 3·I_C0
     rec = study(grounding__circuit_capacitance="2 uF", **{"overrides__50G.pickup_current": "1 A"})
     assert any("below twice the circuit's own charging current" in m for m in messages(rec, "fail", "50G"))
 
@@ -390,6 +399,7 @@ def test_66_wait_from_cooling():
 
 
 def test_81u_only_with_stages():
+    # issue 3: 81U only when the motor takes part in load shedding; stages as entered (REFERENCE 8.2)
     rec = study(supply__underfrequency_stages=[{"frequency": "58.8 Hz", "time_delay": "0.3 s"},
                                                {"frequency": "58.4 Hz", "time_delay": "0.2 s"}])
     f = rec.function("81U")
@@ -398,6 +408,7 @@ def test_81u_only_with_stages():
 
 
 def test_37_only_with_minimum_load():
+    # common practice, no published source: 37 at 80 % of the minimum load current, only when one is given
     assert study().function("37") is None
     rec = study(load__minimum_load="0.5 pu")
     assert value(rec, "37", "pickup_current") == pytest.approx(0.4 * rec.derived["rated_current"].value)
@@ -425,20 +436,24 @@ def test_ct_c37110_check():
 
 
 def test_ct_bad_class_is_input_error():
+    # IEEE C57.13 classes C10 … C800; bad input is an InputError naming the key
     with pytest.raises(InputError, match="phase_ct_class"):
         study(instruments__phase_ct_class="X9", instruments__phase_ct_burden="0.5 ohm")
 
 
 def test_ct_missing_class_warns():
+    # IEEE C37.110 needs the class and the burden
     assert any("C37.110 saturation check was not made" in m for m in messages(study(), "warn"))
 
 
 def test_unknown_override_is_refused():
+    # DESIGN.md: overrides name a function id and one of its settings
     with pytest.raises(InputError, match="has no setting"):
         study(**{"overrides__49.bogus": "1 A"})
 
 
 def test_example_file_runs():
+    # the demo file: 6.2 pu of 186 A; 1500 hp at 745.7 W (NIST SP 811) round-trips exactly
     from machines.files import load_case
     from pathlib import Path
     case, w = load_case(Path(__file__).resolve().parent.parent / "examples" / "chiller-compressor-motor.toml")
