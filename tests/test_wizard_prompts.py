@@ -1,0 +1,175 @@
+"""The interview in process: questionary prompts fed with keys through prompt_toolkit's pipe input.
+
+The keys are what a person presses: text then Enter, arrow-down to pick, y/n for a yes/no question, Ctrl-U to clear
+a refused answer, Ctrl-C to stop. The machine files written are read back through the ordinary machine file reader.
+"""
+
+from __future__ import annotations
+
+import pytest
+from prompt_toolkit.application import create_app_session
+from prompt_toolkit.input import create_pipe_input
+from prompt_toolkit.output import DummyOutput
+
+from machines.files import load_case, parse_toml
+from wizard import session
+
+ENTER, DOWN, CLEAR_LINE, CTRL_C = "\r", "\x1b[B", "\x15", "\x03"
+RAW = (ENTER, "y", "n")  # sent as they are: a selection, or a yes/no that answers at once
+
+
+def keys(answers) -> str:
+    """Typed answers become text + Enter; selections and yes/no keys go as they are."""
+    return "".join(k if (k in RAW or k.endswith(ENTER) or k == CTRL_C) else k + ENTER for k in answers)
+
+
+def press(answers, fn, *args, **kwargs):
+    """Run ``fn`` (a session entry point) with the keys typed into its prompts."""
+    with create_pipe_input() as inp, create_app_session(input=inp, output=DummyOutput()):
+        inp.send_text(keys(answers))
+        inp.close()  # a prompt left waiting sees the input end (EOFError) instead of hanging
+        return fn(*args, **kwargs)
+
+
+@pytest.fixture(autouse=True)
+def terminal(monkeypatch):
+    """Pretend a terminal is there, and leave the PDF sheet out (another command's job, tested there)."""
+    monkeypatch.setattr(session, "_has_terminal", lambda: True)
+    monkeypatch.setattr(session, "_sheet", lambda path: None)
+
+
+IDENT_MOTOR = [ENTER, "CW-P-201", "Chilled-water pump 1", "", "A. Okafor", "", "", "", ENTER]
+NAMEPLATE_MOTOR = ["250 kW", "6.6 kV", "50", "1485", "0.86", "95.5 %", "", "", ENTER, "", "", "n",
+                   "6.5", "0.7", "2.3", "15", "12", "4.5"]
+REST_MOTOR = ["12 kg*m^2", ENTER, "", "", "",
+              "", "250 MVA", "", "", "", ENTER, "n",
+              DOWN + ENTER, "300 A", "",
+              "300/1 A", "", "", "", "",
+              ENTER]
+MOTOR = IDENT_MOTOR + NAMEPLATE_MOTOR + REST_MOTOR
+WRITE = [ENTER]
+
+GENERATOR = [DOWN + ENTER, "GT-G-1", "Gas turbine generator 1", "", "L. Brandt", "", "", "", ENTER,
+             "12.5 MVA", "11 kV", "50 Hz", "1500", "0.8", "n", "1.9", "0.22", "0.14", "",
+             DOWN + ENTER, ENTER, "",
+             "", "500 MVA", "", "", "", "n", "",
+             DOWN * 4 + ENTER, "8 A", "11000/240 V", "", "", "0.3 uF",
+             "800/1 A", "", "", "", "11000/110 V", "",
+             ENTER]
+
+
+def test_full_motor_session_writes_a_valid_machine_file(tmp_path, capsys):
+    out = tmp_path / "m.toml"
+    assert press(MOTOR + WRITE, session.run_new, output=out) == 0
+    case, _ = load_case(out)
+    data = parse_toml(out.read_text())
+    assert case.is_motor and case.sheet.tag == "CW-P-201"
+    # bare numbers are written with the unit shown beside the question
+    assert data["machine"]["frequency"] == "50 Hz" and data["machine"]["rated_speed"] == "1485 rpm"
+    assert data["machine"]["locked_rotor_current"] == "6.5 pu"
+    # defaults from earlier answers: bus voltage = rated voltage; IEC at 50 Hz (the file reader's own rule)
+    assert data["supply"]["nominal_voltage"] == "6.6 kV" and data["study"]["practice"] == "IEC"
+    assert data["sheet"]["revision"] == 0 and data["sheet"]["history"][0]["reason"] == "first issue"
+    text = " ".join(capsys.readouterr().out.split())  # lines are wrapped to the terminal's width
+    assert "licensed engineer" in text and "Review before writing" in text
+    assert f"relaywright settings {out}" in text
+    assert not list(tmp_path.glob(".relaywright-draft-*")), "the draft goes once the file is written"
+
+
+def test_full_generator_session_writes_a_valid_machine_file(tmp_path):
+    out = tmp_path / "g.toml"
+    assert press(GENERATOR + WRITE, session.run_new, output=out) == 0
+    case, _ = load_case(out)
+    data = parse_toml(out.read_text())
+    assert not case.is_motor
+    assert data["machine"]["prime_mover"] == "gas-turbine"
+    # round rotor offered for a gas turbine (common practice, no published source)
+    assert data["machine"]["rotor"] == "cylindrical-indirect"
+    assert data["grounding"] == {"method": "distribution-transformer", "fault_current_limit": "8 A",
+                                 "transformer_ratio": "11000/240 V", "circuit_capacitance": "0.3 uF"}
+    assert "load" not in data
+
+
+def test_a_refused_answer_is_asked_again_and_corrected(tmp_path):
+    out = tmp_path / "m.toml"
+    nameplate = list(NAMEPLATE_MOTOR)
+    # '26 V' for the full-load current is refused at once (a voltage); the person clears it and gives amperes
+    nameplate[6] = "26 V" + ENTER + CLEAR_LINE + "26.6"
+    assert press(IDENT_MOTOR + nameplate + REST_MOTOR + WRITE, session.run_new, output=out) == 0
+    assert parse_toml(out.read_text())["machine"]["rated_current"] == "26.6 A"
+
+
+def test_a_warning_can_be_kept_or_fixed(tmp_path, capsys):
+    out = tmp_path / "m.toml"
+    nameplate = list(NAMEPLATE_MOTOR)
+    # 40 A is 50 % above the current that 250 kW at 6.6 kV, 95.5 %, 0.86 gives: warned; 'n' gives it again
+    nameplate[6] = "40" + ENTER + "n" + "26.6"
+    assert press(IDENT_MOTOR + nameplate + REST_MOTOR + WRITE, session.run_new, output=out) == 0
+    assert parse_toml(out.read_text())["machine"]["rated_current"] == "26.6 A"
+    assert "off the" in " ".join(capsys.readouterr().out.split())
+
+
+def test_going_back_from_the_review_changes_one_answer(tmp_path):
+    out = tmp_path / "m.toml"
+    # review: "Change an answer" → section "Nameplate…" (2nd) → "Service factor" (8th) → 1.15 → write
+    back = [DOWN + ENTER, DOWN + ENTER, DOWN * 7 + ENTER, "1.15"]
+    assert press(MOTOR + back + WRITE, session.run_new, output=out) == 0
+    assert parse_toml(out.read_text())["machine"]["service_factor"] == "1.15"
+
+
+def test_changing_the_grounding_method_at_the_review_asks_the_new_questions(tmp_path):
+    out = tmp_path / "m.toml"
+    # back to Grounding (5th section) → method (1st; the list opens on the answer given) → high resistance;
+    # the let-through current rests on the method and is asked again (5 A); resistor and system capacitance are new
+    back = [DOWN + ENTER, DOWN * 4 + ENTER, ENTER, DOWN + ENTER, "5 A", "", ""]
+    assert press(MOTOR + back + WRITE, session.run_new, output=out) == 0
+    assert parse_toml(out.read_text())["grounding"] == {"method": "high-resistance", "fault_current_limit": "5 A"}
+
+
+def test_ctrl_c_leaves_a_draft_that_resumes_where_it_stopped(tmp_path, capsys):
+    out = tmp_path / "m.toml"
+    stop = len(IDENT_MOTOR) + 5  # in the nameplate, after the power factor
+    assert press(MOTOR[:stop] + [CTRL_C], session.run_new, output=out) == 130
+    drafts = list(tmp_path.glob(".relaywright-draft-*.toml"))
+    assert len(drafts) == 1 and not out.exists()
+    text = " ".join(capsys.readouterr().out.split())
+    assert str(drafts[0]) in text and "--resume" in text
+    assert parse_toml(drafts[0].read_text())["answers"]["machine"]["power_factor"] == "0.86"
+    # resume: only the questions not yet answered are asked
+    assert press(MOTOR[stop:] + WRITE, session.run_new, resume=drafts[0]) == 0
+    case, _ = load_case(out)
+    assert case.sheet.tag == "CW-P-201" and not drafts[0].exists()
+
+
+def test_input_running_out_keeps_the_draft_too(tmp_path):
+    out = tmp_path / "m.toml"
+    assert press(IDENT_MOTOR, session.run_new, output=out) == 130  # EOF after the identification
+    (draft,) = tmp_path.glob(".relaywright-draft-*.toml")
+    assert parse_toml(draft.read_text())["answers"]["sheet"]["tag"] == "CW-P-201"
+
+
+def test_an_earlier_draft_is_offered_and_never_overwritten(tmp_path):
+    out = tmp_path / "m.toml"
+    press(IDENT_MOTOR, session.run_new, output=out)
+    (first,) = tmp_path.glob(".relaywright-draft-*.toml")
+    before = first.read_text()
+    # a new session for the same file: decline to continue, answer one question, stop
+    press(["n", ENTER, "OTHER-1"], session.run_new, output=out)
+    assert first.read_text() == before
+    assert len(list(tmp_path.glob(".relaywright-draft-*.toml"))) == 2
+
+
+def test_an_existing_machine_file_is_not_replaced(tmp_path, capsys):
+    out = tmp_path / "m.toml"
+    out.write_text("something else\n")
+    other = tmp_path / "m2.toml"
+    assert press(MOTOR + WRITE + [str(other)], session.run_new, output=out) == 0
+    assert out.read_text() == "something else\n"
+    assert load_case(other)[0].sheet.tag == "CW-P-201"
+    assert "not be replaced" in " ".join(capsys.readouterr().out.split())
+
+
+def test_no_terminal_says_so_and_exits_2(monkeypatch, capsys):
+    monkeypatch.setattr(session, "_has_terminal", lambda: False)
+    assert session.run_new() == 2
+    assert "--answers" in capsys.readouterr().err
