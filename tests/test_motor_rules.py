@@ -531,3 +531,28 @@ def test_fused_contactor_block_override_above_rating_fails():
                 supply__fuse_rating="200 A", **{"overrides__50P.trip_block_current": "4200 A"})
     assert rec.function("50P").settings["trip_block_current"].source == "override"
     assert any("not below the contactor's breaking current" in m for m in messages(rec, "fail", "50P"))
+
+
+def test_no_source_data():
+    # common practice, no published source: with no fault level the study assumes a stiff bus and 0.85 pu minimum
+    rec = study(supply__fault_level=None, supply__minimum_fault_level=None, supply__minimum_starting_voltage=None)
+    assert rec.derived["minimum_starting_voltage"].value == pytest.approx(0.85)
+    assert rec.derived["minimum_starting_voltage"].source == "common-practice"
+    assert any("stiff bus" in m for m in messages(rec, "warn"))
+    assert any("sensitivity cannot be checked" in m for m in messages(rec, "warn", "50P"))
+
+
+def test_27_without_vt_warns():
+    # REFERENCE 13: 27 needs a voltage input
+    rec = study(instruments__vt=None)
+    s = rec.function("27").settings["pickup_voltage"]
+    assert s.secondary is None
+    assert any("No VT" in m for m in messages(rec, "warn", "27"))
+
+
+def test_49_above_nec_on_iec_practice_warns():
+    # NFPA 70 (NEC) 430.32 is a US rule: on IEC practice a pickup above it is a warning, not a failure
+    case, w = case_from_dict({**motor_data(), "study": {"practice": "IEC"}, "overrides": {"49.pickup_current": "75 A"}})
+    rec = run_study(case, w)
+    assert any("NEC 430.32" in m for m in messages(rec, "warn", "49"))
+    assert not messages(rec, "fail", "49")
