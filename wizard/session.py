@@ -141,10 +141,10 @@ def _kept(draft: Draft, a: Answers) -> None:
 
 
 def first_issue(data: dict) -> dict:
-    """A new machine file is revision 0, with its first line of history."""
+    """A new machine file is revision 0 (unless its answers say otherwise), with its first line of history."""
     sheet = data.setdefault("sheet", {})
     sheet.setdefault("revision", 0)
-    if not sheet.get("history"):
+    if sheet["revision"] == 0 and not sheet.get("history"):
         sheet["history"] = [{"revision": sheet["revision"], "date": sheet.get("date") or flow.today(),
                              "by": sheet.get("prepared_by", ""), "reason": "first issue"}]
     return data

@@ -1,0 +1,139 @@
+"""``relaywright revise FILE``: the file's answers as defaults, who and why, what changed, the previous revision kept."""
+
+from __future__ import annotations
+
+import shutil
+
+import pytest
+
+from machines.compare import compare
+from machines.errors import InputError
+from machines.files import load_case, parse_toml
+from machines.study import run_study
+from reports.changes import format_changes
+from wizard import flow, session
+from wizard.flow import Answers
+
+from conftest import EXAMPLES, run_cli
+from test_wizard_prompts import CTRL_C, DOWN, ENTER, press
+
+CHANGES = """
+[[sheet.history]]
+by = "R. Field"
+reason = "motor rewound, new nameplate"
+[machine]
+rated_current = "190 A"
+"""
+
+
+@pytest.fixture
+def motor(tmp_path):
+    path = tmp_path / "chiller.toml"
+    shutil.copy(EXAMPLES / "chiller-compressor-motor.toml", path)
+    return path
+
+
+@pytest.fixture(autouse=True)
+def terminal(monkeypatch):
+    monkeypatch.setattr(session, "_has_terminal", lambda: True)
+    monkeypatch.setattr(session, "_sheet", lambda path: None)
+
+
+def flat(text: str) -> str:
+    return " ".join(text.split())
+
+
+def studied(path):
+    case, warnings = load_case(path)
+    return case, run_study(case, warnings)
+
+
+def test_one_nameplate_change_shows_the_input_and_every_setting_change(motor, tmp_path, capsys):
+    before = motor.read_text()
+    changes = tmp_path / "changes.toml"
+    changes.write_text(CHANGES)
+    assert session.run_revise(motor, answers=changes) == 0
+    kept = motor.with_name("chiller.rev1.toml")
+    assert kept.read_text() == before  # the previous revision, byte for byte
+    data = parse_toml(motor.read_text())
+    assert data["sheet"]["revision"] == 2 and data["sheet"]["status"] == "draft"
+    assert data["sheet"]["history"][-1] == {"revision": 2, "date": flow.today(), "by": "R. Field",
+                                            "reason": "motor rewound, new nameplate"}
+    text = flat(capsys.readouterr().out)
+    assert "machine.rated_current: 186 A → 190 A" in text
+    # every change the compare module finds between the two files is on the screen, settings included
+    expected = format_changes(compare(*studied(kept), *studied(motor)))
+    for line in expected:
+        assert flat(line) in text
+    assert len(expected) > 1
+
+
+def test_the_kept_revision_is_never_overwritten(motor, tmp_path):
+    older = motor.with_name("chiller.rev1.toml")
+    older.write_text("an earlier copy with other content\n")
+    changes = tmp_path / "changes.toml"
+    changes.write_text(CHANGES)
+    session.run_revise(motor, answers=changes)
+    assert older.read_text() == "an earlier copy with other content\n"
+    assert load_case(motor.with_name("chiller.rev1-2.toml"))[0].sheet.revision == 1
+
+
+def test_a_revision_without_a_reason_is_refused(motor, tmp_path):
+    changes = tmp_path / "changes.toml"
+    changes.write_text('[machine]\nrated_current = "190 A"\n')
+    before = motor.read_text()
+    with pytest.raises(InputError, match=r"^sheet\.history: a revision needs a reason"):
+        session.run_revise(motor, answers=changes)
+    assert motor.read_text() == before and not motor.with_name("chiller.rev1.toml").exists()
+
+
+def test_a_bad_changed_value_is_refused_with_the_file_readers_message(motor, tmp_path):
+    changes = tmp_path / "changes.toml"
+    changes.write_text(CHANGES.replace('"190 A"', '"190 V"'))
+    with pytest.raises(InputError, match=r"^machine\.rated_current: .*'190 V' is a voltage"):
+        session.run_revise(motor, answers=changes)
+
+
+def test_interactive_revise_pick_one_answer_from_the_summary(motor, capsys):
+    # "pick" → review: Change an answer → Nameplate (2nd) → Full-load current (7th) → 190 → write;
+    # who: Enter keeps the preparer; why; write revision 2: yes
+    keys = [DOWN + ENTER, DOWN + ENTER, DOWN + ENTER, DOWN * 6 + ENTER, "190", ENTER, "", "new nameplate", "y"]
+    assert press(keys, session.run_revise, motor) == 0
+    data = parse_toml(motor.read_text())
+    assert data["machine"]["rated_current"] == "190 A"
+    assert data["sheet"]["history"][-1]["by"] == "A. Okafor"
+    assert data["sheet"]["history"][-1]["reason"] == "new nameplate"
+    assert "machine.rated_current: 186 A → 190 A" in flat(capsys.readouterr().out)
+    assert motor.with_name("chiller.rev1.toml").exists()
+
+
+def test_interactive_revise_enter_keeps_every_value(motor, capsys):
+    a = Answers(data=parse_toml(motor.read_text()))
+    flow.scripted(a)
+    n = len(flow.applicable(a))
+    keys = [ENTER] + [ENTER] * n + [ENTER, "", "names only", "y"]  # all questions, then write, who, why, yes
+    assert press(keys, session.run_revise, motor) == 0
+    text = flat(capsys.readouterr().out)
+    assert "What changed from revision 1 to 2: no changes" in text
+    assert load_case(motor)[0].sheet.revision == 2
+
+
+def test_interrupted_revise_leaves_a_draft_it_offers_next_time(motor, capsys):
+    before = motor.read_text()
+    # question by question; the machine kind kept; a new tag; Ctrl-C
+    assert press([ENTER, ENTER, "CH-M-101A", CTRL_C], session.run_revise, motor) == 130
+    assert motor.read_text() == before
+    (draft,) = motor.parent.glob(".relaywright-draft-*.toml")
+    assert f"relaywright revise {motor}" in flat(capsys.readouterr().out)
+    # next time: continue → the tag answer is there; Enter through the rest, write, who, why, yes
+    a = Answers(data=parse_toml(motor.read_text()))
+    flow.scripted(a)
+    rest = len(flow.applicable(a)) - 2
+    assert press(["y"] + [ENTER] * rest + [ENTER, "", "tag corrected", "y"], session.run_revise, motor) == 0
+    assert load_case(motor)[0].sheet.tag == "CH-M-101A" and not draft.exists()
+
+
+def test_revise_without_a_terminal_exits_2(motor):
+    r = run_cli("revise", str(motor))
+    assert r.returncode == 2 and "--answers" in r.stderr
+    assert load_case(motor)[0].sheet.revision == 1
