@@ -298,7 +298,7 @@ SHEDDING = [{"frequency": "59.3 Hz", "time_delay": "0.2 s"}, {"frequency": "58.9
 def test_steam_turbine_without_bands_gets_conservative_stages():
     fs = study().function("81U")
     assert fs.settings["stages"].source == "common-practice"
-    assert "warn" in _statuses(fs, "No maker's off-frequency bands")
+    assert "warn" in _statuses(fs, "No maker's off-frequency bands below nominal")
     assert "conservative" in fs.basis
     stages = fs.settings["stages"].value
     assert [s["frequency"] for s in stages] == pytest.approx([0.975 * 60, 0.96 * 60])
@@ -415,3 +415,13 @@ def test_ungrounded_machine_has_no_resistor():
     assert "grounding_resistor" not in fs.settings and "resistor_current" not in record.derived
     assert "warn" in _statuses(fs, "Ungrounded")
     assert record.function("27TN") is None
+
+
+def test_gas_turbine_with_bands_only_above_nominal():
+    # no band below nominal: the underfrequency side falls back to labelled conservative stages with a warning
+    bands = [{"low": "60.5 Hz", "high": "61.5 Hz", "allowed": "1800 s"}]
+    record = study(**{"machine.prime_mover": "gas-turbine", "machine.frequency_limits": bands})
+    under, over = record.function("81U"), record.function("81O")
+    assert under.settings["stages"].source == "common-practice"
+    assert "warn" in _statuses(under, "below nominal")
+    assert over.settings["stages"].source == "maker-data"

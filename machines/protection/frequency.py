@@ -98,9 +98,10 @@ def _function(ctx: StudyContext, under: bool) -> FunctionSettings:
         stages = [{"frequency": k * f0, "time_delay": t} for k, t in table]
         how = "conservative stages labelled as such (common practice, no published source)"
         if m.prime_mover in TURBINES:
-            checks.append(Check("warn", f"No maker's off-frequency bands for this {m.prime_mover.replace('-', ' ')}: "
-                                        f"conservative stages are proposed; enter machine.frequency_limits from "
-                                        f"the turbine maker (blade-resonance limits)."))
+            checks.append(Check("warn", f"No maker's off-frequency bands {'below' if under else 'above'} nominal "
+                                        f"for this {m.prime_mover.replace('-', ' ')}: conservative stages are "
+                                        f"proposed; enter machine.frequency_limits from the turbine maker "
+                                        f"(blade-resonance limits)."))
         else:
             checks.append(Check("ok", f"No maker's bands: a {m.prime_mover.replace('-', ' ')} has no blade-"
                                       f"resonance limits; the stages protect the machine and its auxiliaries."))
