@@ -242,6 +242,9 @@ def restrained_pickup(pickup_at_rated_voltage: float, voltage: float, floor: flo
 
 #: Power that motors a unit at synchronous speed, fraction of rated kW: (lowest, typical), by prime mover.
 #: Blackburn & Domin, Protective Relaying, generator protection chapter (attribution inferred); REFERENCE 9.1.
+#: The typical values are those of REFERENCE 9.6; the lowest are the bottoms of the handbook ranges (steam 1 %,
+#: hydro 0.2 %, diesel 5 %), except the gas turbine's 10 %, which stands for two-shaft and aeroderivative units
+#: the handbook only calls "much less" than 50 % (common practice, no published source).
 MOTORING_POWER: dict[str, tuple[float, float]] = {
     "steam-turbine": (0.01, 0.02),
     "hydro": (0.002, 0.01),
