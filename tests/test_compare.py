@@ -98,8 +98,8 @@ def test_sheet_bookkeeping_is_not_a_change_but_the_description_is(base):
 
 
 def test_ct_ratio_change(base):
-    changes = compare(*studied(base), *studied(edited(base, instruments={"phase_ct": "300/5 A"})))
-    assert Change("instruments.phase_ct", "250/5 A", "300/5 A") in changes.inputs
+    changes = compare(*studied(base), *studied(edited(base, instruments={"phase_ct": "400/5 A"})))
+    assert Change("instruments.phase_ct", "300/5 A", "400/5 A") in changes.inputs
 
 
 def record(functions, derived=None) -> SettingsRecord:
