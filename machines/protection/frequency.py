@@ -18,7 +18,7 @@ from machines.standards.frequency import band_consumption, band_containing
 
 EVENT_FRACTION = 0.10  #: one event may use at most 10 % of a band's allowance (common practice)
 LS_FREQUENCY_MARGIN = 0.1  #: [Hz] generator stages at least this far below the lowest shedding stage (common practice)
-LS_TIME_MARGIN = 0.3  #: [s] generator stages at least this much slower than the slowest shedding stage (common practice)
+LS_TIME_MARGIN = 0.3  #: [s] generator stages this much slower than the slowest shedding stage (common practice)
 MINIMUM_DELAY = 0.5  #: [s] shortest generator frequency-stage delay (common practice, no published source)
 MAX_STAGES = 4  #: stages a typical relay offers per direction
 #: Conservative stages without maker bands, (frequency in pu of nominal, delay [s]); common practice, no published
@@ -95,7 +95,7 @@ def _function(ctx: StudyContext, under: bool) -> FunctionSettings:
     else:
         source = "common-practice"
         table = CONSERVATIVE_UNDER if under else CONSERVATIVE_OVER
-        stages = [{"frequency": k * f0, "time_delay": t} for k, t in table]
+        stages = [{"frequency": round(k * f0, 3), "time_delay": t} for k, t in table]
         how = "conservative stages labelled as such (common practice, no published source)"
         if m.prime_mover in TURBINES:
             checks.append(Check("warn", f"No maker's off-frequency bands {'below' if under else 'above'} nominal "
@@ -116,8 +116,9 @@ def _function(ctx: StudyContext, under: bool) -> FunctionSettings:
     for i, st in enumerate(stages, start=1):
         f, t = st["frequency"], st["time_delay"]
         if (under and f >= f0) or (not under and f <= f0) or t < 0:
-            raise InputError(f"overrides.{fid}.stage{i}_frequency", f"expected a frequency {'below' if under else 'above'} "
-                                                                   f"{f0:g} Hz and a delay ≥ 0, got {f:g} Hz / {t:g} s")
+            side = "below" if under else "above"
+            raise InputError(f"overrides.{fid}.stage{i}_frequency", f"expected a frequency {side} {f0:g} Hz and a "
+                                                                   f"delay ≥ 0, got {f:g} Hz / {t:g} s")
         j = band_containing(f - EDGE if under else f + EDGE, bands)
         if j is not None:
             use = band_consumption(t, bands[j].allowed)

@@ -18,7 +18,7 @@ TRIP2_STEP = 0.13  #: trip stage 2 at limit + 0.13 pu (REFERENCE 9.3: ≈ 1.18�
 ALARM_DELAY = 45.0  #: [s] REFERENCE 9.3: 45–60 s (value from memory)
 TRIP1_DELAY = 45.0  #: [s] REFERENCE 9.3: 45–60 s (value from memory)
 TRIP2_DELAY = 2.0  #: [s] REFERENCE 9.3: 2–6 s (value from memory)
-NORMAL_VOLTAGE = 1.05  #: IEEE C50.13: rated kVA within ±5 % voltage
+NORMAL_VOLTAGE = 1.05  #: IEEE C50.13 and IEC 60034-1 zone A: rated output within ±5 % voltage
 
 
 def settings(ctx: StudyContext) -> FunctionSettings:
@@ -59,7 +59,8 @@ def settings(ctx: StudyContext) -> FunctionSettings:
                                     f"usual short-time capability would be allowed for {delay:g} s."))
     if limit < NORMAL_VOLTAGE - 1e-9:
         checks.append(Check("warn", f"The transformer's limit is {limit:.4g} pu on the generator base, below the "
-                                    f"{NORMAL_VOLTAGE:g} pu at which C50.13 lets the generator run: the alarm will "
+                                    f"{NORMAL_VOLTAGE:g} pu at which the generator may run (IEEE C50.13; IEC "
+                                    f"60034-1 zone A): the alarm will "
                                     f"operate in normal service above {limit:.4g} pu voltage; limit the voltage "
                                     f"regulator's set point or re-tap the transformer."))
     v_sec = m.rated_voltage if vt is None else vt.to_secondary(m.rated_voltage)
@@ -83,8 +84,9 @@ def settings(ctx: StudyContext) -> FunctionSettings:
         tests.append(timed_test_point("phase-to-phase voltage at rated frequency", 1.02 * level * v_sec, unit, t,
                                       description=f"{name}: 102 % of pickup, {f0:g} Hz "
                                                   f"({volts_per_hertz(1.02 * level, 1.0):.4g} pu V/Hz)"))
-    tests.append(timed_test_point("frequency at rated voltage", f0 / (1.02 * trip), "Hz", delay,
-                                  description=f"trip stage 1 by frequency: rated voltage at {f0 / (1.02 * trip):.4g} Hz"))
+    f_test = f0 / (1.02 * trip)
+    tests.append(timed_test_point("frequency at rated voltage", f_test, "Hz", delay,
+                                  description=f"trip stage 1 by frequency: rated voltage at {f_test:.4g} Hz"))
     tests.append(timed_test_point("phase-to-phase voltage at rated frequency", 0.98 * alarm * v_sec, unit, None,
                                   description="98 % of the alarm pickup: must not operate"))
     basis_text = (f"Volts per hertz on the generator base; the lower of the generator's {g_limit:.4g} pu and the "

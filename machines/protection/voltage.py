@@ -42,7 +42,7 @@ def undervoltage(ctx: StudyContext) -> FunctionSettings:
         checks.append(Check("ok", f"Pickup {pickup / vr:.3g} pu is below the normal operating band (±5 %)."))
     else:
         checks.append(Check("fail", f"Pickup {pickup / vr:.3g} pu is inside the normal operating band "
-                                    f"(C50.13 ±5 %): the element trips a healthy machine."))
+                                    f"(±5 %, IEEE C50.13; IEC 60034-1 zone A): the element trips a healthy machine."))
     checks.append(Check("ok", "The delay must exceed the clearing time of system faults and the 51V backup; "
                               "block the element while the machine is de-excited or not synchronised."))
     values = {"pickup_voltage": voltage_setting(pickup, vt, p_src, "Pickup (phase-to-phase)", f"{pickup / vr:.3g} pu"),
@@ -67,7 +67,7 @@ def overvoltage(ctx: StudyContext) -> FunctionSettings:
         checks.append(Check("ok", f"Pickup {pickup / vr:.3g} pu is above the normal operating band (±5 %)."))
     else:
         checks.append(Check("fail", f"Pickup {pickup / vr:.3g} pu is inside the normal operating band "
-                                    f"(C50.13 ±5 %): the element trips a healthy machine."))
+                                    f"(±5 %, IEEE C50.13; IEC 60034-1 zone A): the element trips a healthy machine."))
     if not high > pickup:
         checks.append(Check("fail", f"High stage {high / vr:.3g} pu must be above the time-delayed stage "
                                     f"{pickup / vr:.3g} pu."))
