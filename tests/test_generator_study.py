@@ -118,3 +118,30 @@ def test_failed_check_makes_the_command_exit_1(tmp_path):
     ok = tmp_path / "ok.toml"
     ok.write_text(dumps(generator_data()), "utf-8")
     assert run_cli("settings", str(ok)).returncode == 0
+
+
+DERIVED_ONLY = {("59N", "grounding_resistor"), ("51N", "coverage")}  # sized from data, or follows the pickup
+
+
+@pytest.mark.parametrize("method", ["distribution-transformer", "low-resistance"])
+def test_every_numeric_setting_can_be_overridden(method):
+    # DESIGN.md: a user may override any computed setting; the rule then checks the value it gets back
+    changes = {"grounding.method": method, "grounding.fault_current_limit": "400 A"}
+    record = study(**changes)
+    units = {"pu V/Hz": "pu"}
+    for fs in record.functions:
+        for key, s in fs.settings.items():
+            if isinstance(s.value, (list, bool)) or (fs.id, key) in DERIVED_ONLY:
+                continue
+            text = s.value if isinstance(s.value, str) else f"{s.value:.6g} {units.get(s.unit, s.unit)}".strip()
+            data = generator_data(**changes)
+            data["overrides"] = {f"{fs.id}.{key}": text}
+            got = run_study(*case_from_dict(data)).function(fs.id).settings[key]
+            assert got.source == "override", (fs.id, key)
+            assert got.value == pytest.approx(s.value, rel=1e-5) if not isinstance(s.value, str) else got.value == text
+    for fid, key in DERIVED_ONLY:
+        data = generator_data(**changes)
+        data["overrides"] = {f"{fid}.{key}": "1"}
+        if record.function(fid) is not None:
+            with pytest.raises(InputError, match="derived and cannot be overridden"):
+                run_study(*case_from_dict(data))

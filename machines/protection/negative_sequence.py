@@ -37,7 +37,7 @@ def settings(ctx: StudyContext) -> FunctionSettings:
 
     cont, cont_src = ctx.choose(FID, "continuous_i2", cap.continuous, "per_unit", "", cap_src)
     pickup, pick_src = ctx.choose(FID, "pickup_current", cont * ir, "current", "A", cont_src)
-    if pick_src == "override":
+    if ctx.case.override(f"{FID}.pickup_current") is not None:
         cont, cont_src = pickup / ir, "override"
     k_set, k_src = ctx.choose(FID, "k_constant", K_FRACTION * cap.k, "time", "s", "common-practice")
     alarm, alarm_src = ctx.choose(FID, "alarm_pickup_current", ALARM_FRACTION * pickup, "current", "A",

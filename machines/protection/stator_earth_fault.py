@@ -129,7 +129,7 @@ def neutral_overvoltage(ctx: StudyContext) -> FunctionSettings | None:
                                                    f"{coverage:g}")
     pickup, p_src = ctx.choose("59N", "pickup_voltage", gnd.neutral_pickup_for_coverage(m.rated_voltage, coverage),
                                "voltage", "V", cov_src)
-    if p_src == "override":
+    if case.override("59N.pickup_voltage") is not None:
         coverage, cov_src = gnd.coverage_for_neutral_pickup(m.rated_voltage, pickup), "derived"
     delay, d_src = ctx.choose("59N", "time_delay", NEUTRAL_DELAY, "time", "s", "common-practice")
     ratio, ratio_from = _neutral_ratio(ctx)
