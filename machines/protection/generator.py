@@ -213,7 +213,7 @@ def _time_current_drawing(ctx: StudyContext, fs: FunctionSettings) -> Drawing:
                           for x in _logspace(1.1 * ir, min(hi, 4.0 * ir), 25)], "dashed"))
     return Drawing(kind="time-current", title="51V voltage-restrained overcurrent and the sustained fault current",
                    x_label="current [A primary]", y_label="time [s]", log_x=True, log_y=True, series=series,
-                   x_range=(lo * 0.8, hi), y_range=(0.01, 1000.0))
+                   x_range=(min(lo, isus, 1.1 * ir) * 0.8, hi), y_range=(0.01, 1000.0))
 
 
 def _circle_points(center: tuple[float, float], radius: float, n: int = 73) -> list[tuple[float, float]]:
