@@ -6,6 +6,7 @@ import pytest
 from hypothesis import given, settings, strategies as st
 
 from machines.errors import InputError
+from machines.standards.accuracy import operate_time_tolerance
 from machines.standards.inverse_time import (
     CURVES, curve_constants, inverse_operate_time, inverse_reset_time, time_multiplier_for,
 )
@@ -94,3 +95,20 @@ def test_operate_time_falls_with_current_and_inverts(curve, m1, m2, tms):
     # TMS = t / t(M, 1) is the exact inverse of the operate time [derived]
     t = inverse_operate_time(lo, curve, tms)
     assert time_multiplier_for(t, lo, curve) == pytest.approx(tms, rel=1e-9)
+
+
+@pytest.mark.parametrize("multiple, t_theo, band, widened", [
+    # REFERENCE 12.3 (IEC SI, TMS 0.2, ε = 5 %, t_min = 30 ms, δ = 5 %), IEC 60255-151 accuracy template
+    (2, 2.006, (1.906, 2.106), (1.773, 2.267)),
+    (5, 0.8559, (0.8131, 0.8987), (0.7876, 0.9273)),
+    (10, 0.5941, (0.5641, 0.6241), (0.5509, 0.6376)),
+])
+def test_commissioning_bands(multiple, t_theo, band, widened):
+    t = inverse_operate_time(multiple, "IEC-SI", 0.2)
+    assert t == pytest.approx(t_theo, rel=5e-4)
+    tol = operate_time_tolerance(t)
+    assert (t - tol, t + tol) == pytest.approx(band, rel=5e-4)
+    # pickup tolerance ±δ: evaluate the curve at M/(1 ∓ δ), then apply the time tolerance (REFERENCE 12.2)
+    lo = inverse_operate_time(multiple / 0.95, "IEC-SI", 0.2)
+    hi = inverse_operate_time(multiple / 1.05, "IEC-SI", 0.2)
+    assert (lo - operate_time_tolerance(lo), hi + operate_time_tolerance(hi)) == pytest.approx(widened, rel=5e-4)
