@@ -48,6 +48,11 @@ class GeneratorBasis:
     capacitance_parts: tuple[str, ...]  #: which file keys it came from
 
     @property
+    def unbalance_setting_source(self) -> str:
+        """Source kind of settings taken from the capability: "maker-data" when any maker value is used."""
+        return "maker-data" if self.unbalance_source.startswith("maker") else "standard"
+
+    @property
     def vt_factor(self) -> float | None:
         return None if self.vt is None else self.vt.factor
 
@@ -116,9 +121,9 @@ def prepare(case: MachineCase) -> StudyContext:
                                                    "Transient three-phase fault current", "E/X'd, E = 1 pu")
     d["subtransient_fault_current"] = current_setting(basis.subtransient_fault_current, basis.ct, "derived",
                                                       "Subtransient three-phase fault current", "E/X''d, E = 1 pu")
-    d["negative_sequence_capability"] = Setting(unbalance.continuous, "pu", _source(usource),
+    d["negative_sequence_capability"] = Setting(unbalance.continuous, "pu", basis.unbalance_setting_source,
                                                 label="Continuous I2 capability", note=unbalance.reference)
-    d["negative_sequence_k"] = Setting(unbalance.k, "s", _source(usource), label="I2²t capability K",
+    d["negative_sequence_k"] = Setting(unbalance.k, "s", basis.unbalance_setting_source, label="I2²t capability K",
                                        note=unbalance.reference)
     if c0 is not None:
         d["total_capacitance"] = Setting(c0, "F", "entered", label="Phase-to-ground capacitance per phase",
@@ -137,10 +142,6 @@ def prepare(case: MachineCase) -> StudyContext:
         checks.append(Check("warn", "instruments.vt is not given: voltage, power and impedance elements are set "
                                     "in primary terms only; enter the VT ratio for relay-side values"))
     return ctx
-
-
-def _source(usource: str) -> str:
-    return "maker-data" if usource.startswith("maker") else "standard"
 
 
 #: The setting rules in the order the sheet lists them.

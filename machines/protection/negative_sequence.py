@@ -33,7 +33,7 @@ def settings(ctx: StudyContext) -> FunctionSettings:
     m = ctx.case.machine
     ir, ct = basis.rated_current, basis.ct
     cap = basis.unbalance
-    cap_src = "maker-data" if basis.unbalance_source.startswith("maker") else "standard"
+    cap_src = basis.unbalance_setting_source
 
     cont, cont_src = ctx.choose(FID, "continuous_i2", cap.continuous, "per_unit", "", cap_src)
     pickup, pick_src = ctx.choose(FID, "pickup_current", cont * ir, "current", "A", cont_src)
