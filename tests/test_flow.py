@@ -152,7 +152,7 @@ def test_answers_are_written_as_a_person_writes_them(key, typed, written):
 
 @pytest.mark.parametrize("key, typed", [
     ("machine.rated_current", "96 V"), ("machine.rated_voltage", "4,16 kV"), ("machine.frequency", "500 Hz"),
-    ("machine.rated_output", "10 ** 10 ** 10 W"), ("machine.efficiency", "95.8"), ("instruments.phase_ct", "1/200 A"),
+    ("machine.rated_output", "10 ** 10 ** 10 W"), ("machine.efficiency", "99.9 %"), ("instruments.phase_ct", "1/200 A"),
 ])
 def test_a_refused_answer_reads_like_the_file_readers_refusal(key, typed):
     a = answers(machine=MOTOR)
@@ -161,6 +161,14 @@ def test_a_refused_answer_reads_like_the_file_readers_refusal(key, typed):
     with pytest.raises(InputError) as reader:
         parse_value(s, typed, key, default_unit=s.unit or None)
     assert flow.refusal(q, a, typed) == str(reader.value)
+
+
+def test_a_bare_percentage_is_refused_with_a_tip_after_the_readers_message():
+    a = answers(machine=MOTOR)
+    q = flow.find("machine.efficiency", a)
+    with pytest.raises(InputError) as reader:
+        parse_value(flow.spec(q, a), "95.8", "machine.efficiency")
+    assert flow.refusal(q, a, "95.8") == f"{reader.value} (for a percentage write '95.8 %')"
 
 
 def test_a_required_answer_left_blank_is_refused_naming_the_key():

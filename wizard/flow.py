@@ -455,9 +455,9 @@ QUESTIONS: tuple[Question, ...] = (
     Question("machine.starts_hot", "Starts allowed from hot", "Starts from hot", "nameplate",
              when=both(M, makers_data)),
     Question("machine.heating_time_constant", "Heating time constant, running", "Heating time constant",
-             "nameplate", when=both(M, makers_data), blank=constant("estimated by the study")),
+             "nameplate", when=both(M, makers_data), blank=constant("not known")),
     Question("machine.cooling_time_constant", "Cooling time constant, standing still", "Cooling time constant",
-             "nameplate", when=both(M, makers_data), blank=constant("estimated by the study")),
+             "nameplate", when=both(M, makers_data), blank=constant("not known")),
 
     # nameplate: generator
     Question("flow.makers_data", "Is the maker's data sheet at hand (negative-sequence capability, "
@@ -470,7 +470,7 @@ QUESTIONS: tuple[Question, ...] = (
              checks=(check_reactances,), help="e.g. 0.15 pu",
              after=("machine.xd", "machine.xd_transient")),
     Question("machine.x2", "Negative-sequence reactance x2", "x2", "nameplate", when=both(G, makers_data),
-             blank=constant("taken as xd''")),
+             blank=constant("not known")),
     Question("machine.negative_sequence_continuous", "Continuous negative-sequence current the maker allows",
              "Continuous I2", "nameplate", when=both(G, makers_data), help="pu of rated current, e.g. 0.08 pu",
              blank=constant("from the standard's table for the rotor type")),
@@ -777,9 +777,16 @@ def refusal(q: Question, a: Answers, raw: Any) -> str | None:
     try:
         value = accept(q, a, raw)
     except InputError as e:
-        return str(e)
+        return str(e) + _percent_tip(q, a, raw)
     errors = [f.message for f in findings(q, a.trial(q.key, value)) if f.level == "error"]
     return errors[0] if errors else None
+
+
+def _percent_tip(q: Question, a: Answers, raw: Any) -> str:
+    """A bare 95.8 for an efficiency or power factor was meant as a percentage: say how to write it."""
+    if spec(q, a).kind != "per_unit" or not isinstance(raw, str) or not _BARE.fullmatch(raw):
+        return ""
+    return f" (for a percentage write '{raw.strip()} %')" if 1.0 < float(raw) <= 100.0 else ""
 
 
 # ---------------------------------------------------------------------------------------------------- results
