@@ -137,3 +137,13 @@ def test_revise_without_a_terminal_exits_2(motor):
     r = run_cli("revise", str(motor))
     assert r.returncode == 2 and "--answers" in r.stderr
     assert load_case(motor)[0].sheet.revision == 1
+
+
+def test_an_earlier_revision_draft_is_never_lost(motor):
+    press([ENTER, ENTER, "CH-M-101A", CTRL_C], session.run_revise, motor)
+    (draft,) = motor.parent.glob(".relaywright-draft-*.toml")
+    before = draft.read_text()
+    assert press([CTRL_C], session.run_revise, motor) == 130  # Ctrl-C at "continue where it stopped?"
+    assert draft.read_text() == before
+    press(["n", ENTER, ENTER, "OTHER", CTRL_C], session.run_revise, motor)  # declined: a second draft
+    assert draft.read_text() == before and len(list(motor.parent.glob(".relaywright-draft-*.toml"))) == 2

@@ -136,7 +136,7 @@ def test_revise_in_a_terminal_shows_the_change_and_keeps_the_old_revision(tmp_pa
     child.expect_exact("Write revision 2")
     child.send("y")
     child.expect_exact("Written:")
-    finish(child)
+    assert finish(child) in (0, 1)  # 1: the sheet was made and one of its checks failed
     data = parse_toml(path.read_text())
     assert data["sheet"]["revision"] == 2 and data["machine"]["rated_current"] == "190 A"
     assert data["sheet"]["history"][-1]["reason"] == "new nameplate after rewind"

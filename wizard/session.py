@@ -122,8 +122,8 @@ def _interview_new(draft: Draft, a: Answers) -> int:
 def _interrupted(draft: Draft, a: Answers) -> int:
     say()
     if not a.asked:
-        draft.remove()
-        say("Stopped before the first answer; nothing was saved.")
+        say("Stopped before the first answer; nothing was saved." if not draft.path.exists() else
+            f"Stopped; the draft {draft.path} is left as it was.")
     else:
         _kept(draft, a)
     return EXIT_INTERRUPTED
@@ -364,6 +364,8 @@ def _start_revise(draft: Draft, a: Answers, path: Path) -> Answers:
         say(f"An unfinished revision of this file left a draft: {draft.path}")
         if confirm("Continue where it stopped?", default=True):
             return load_draft(draft.path)[1]
+        draft.path = free_draft_path(path.parent, f"{path.stem}.revise")
+        say(f"The earlier draft is kept; this session saves to {draft.path}")
     how = choose("How do you want to go through it?", [
         ("all", "question by question (Enter keeps each value)"),
         ("pick", "from the summary: pick only the answers that changed")])
@@ -449,6 +451,9 @@ def _finish_revise(path: Path, text: str, old_case, old_warnings, a: Answers, by
         say(f"  {line}")
     for w in new_warnings:
         say(f"  ! {w}")
+    if old_case.sheet.status != "draft":
+        say(f"  The new revision is a draft again (revision {old_rev} was {old_case.sheet.status}): it needs "
+            "checking and approval before use.")
     if draft is not None:
         from wizard.ask import confirm
 
