@@ -116,3 +116,11 @@ def test_without_a_terminal_and_without_answers_it_says_so_and_exits_2(tmp_path)
     assert r.returncode == 2
     assert "--answers" in r.stderr and "no" in r.stderr
     assert not list(tmp_path.iterdir())
+
+
+def test_an_answer_that_does_not_apply_is_left_out_with_a_warning(tmp_path, capsys):
+    answers, out = tmp_path / "a.toml", tmp_path / "m.toml"
+    answers.write_text(PARTIAL_MOTOR.replace('method = "solid"', 'method = "solid"\nfault_current_limit = "400 A"'))
+    assert session.run_new(answers=answers, output=out) == 0
+    assert parse_toml(out.read_text())["grounding"] == {"method": "solid"}
+    assert "warning: grounding.fault_current_limit is left out" in capsys.readouterr().err

@@ -823,6 +823,12 @@ def machine_data(a: Answers) -> dict:
     return out
 
 
+def left_out(a: Answers) -> list[str]:
+    """Keys the answers give that no longer apply (e.g. a fault current limit for a solidly grounded system)."""
+    live = {q.key for q in applicable(a)}
+    return [k for k in dict.fromkeys(q.key for q in QUESTIONS) if k not in live and a.has(k)]
+
+
 def review_rows(a: Answers) -> list[tuple[str, list[tuple[str, str]]]]:
     """The review summary: (section title, [(label, answer as written)]) for every section that was asked."""
     out: list[tuple[str, list[tuple[str, str]]]] = []

@@ -161,10 +161,18 @@ def _new_from_answers(path: Path, output: Path | None) -> int:
         held = f" (revision {rev})" if rev is not None else ""
         raise InputError(str(out), f"already exists{held} and is not replaced; nothing was written. Give another "
                                    f"-o, or change that file with 'relaywright revise {out}'")
-    for w in dict.fromkeys(warnings + more):
-        print(f"warning: {w}", file=sys.stderr)
+    _warn(warnings + more + _left_out(a))
     write_machine_file(out, data)
     return _written(out, data)
+
+
+def _left_out(a: Answers) -> list[str]:
+    return [f"{key} is left out: it does not apply to these answers" for key in flow.left_out(a)]
+
+
+def _warn(lines: list[str]) -> None:
+    for w in dict.fromkeys(lines):
+        print(f"warning: {w}", file=sys.stderr)
 
 
 def _safe_name(tag: str) -> str:
@@ -333,7 +341,7 @@ def run_revise(file: Path, answers: Path | None = None) -> int:
     a.data["sheet"]["date"] = flow.today()
     if answers is not None:
         by, reason = _apply_changes(a, Path(answers))
-        flow.scripted(a)
+        _warn(flow.scripted(a) + _left_out(a))
         return _finish_revise(path, text, old_case, old_warnings, a, by, reason, draft=None)
     if not _has_terminal():
         print(NO_TERMINAL.format(command="revise", hint=f"relaywright revise {path} --answers CHANGES.toml "
