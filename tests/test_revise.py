@@ -1,4 +1,4 @@
-"""``relaywright revise FILE``: the file's answers as defaults, who and why, what changed, the previous revision kept."""
+"""``relaywright revise FILE``: the file's answers as defaults, who and why, what changed, the old revision kept."""
 
 from __future__ import annotations
 

@@ -152,9 +152,9 @@ def _ask_rows(q: Question, a: Answers, say: Say) -> list[dict] | None:
         for name, text in q.row_text:
             s = item_specs[name]
 
-            def validate(raw: str, name=name):
+            def validate(raw: str, name=name, i=n - 1):
                 try:
-                    flow.accept_cell(q, a, n - 1, name, raw)
+                    flow.accept_cell(q, a, i, name, raw)
                 except InputError as e:
                     return str(e)
                 return True

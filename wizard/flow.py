@@ -364,20 +364,17 @@ _MAKER = "maker's data sheet"
 _STOP_HINT = "if you do not have it, press Ctrl-C: your answers are kept for 'relaywright new --resume'"
 
 
-def _motor_maker_keys() -> tuple[str, ...]:
-    return ("machine.locked_rotor_current", "machine.starts_cold", "machine.starts_hot",
-            "machine.heating_time_constant", "machine.cooling_time_constant")
-
-
-def _generator_maker_keys() -> tuple[str, ...]:
-    return ("machine.x2", "machine.negative_sequence_continuous", "machine.negative_sequence_k",
-            "machine.stator_capacitance", "machine.third_harmonic_neutral_min", "machine.inertia_constant",
-            "machine.frequency_limits")
+#: The maker's optional data a "data sheet at hand?" answer of yes opens.
+MOTOR_MAKER_KEYS = ("machine.locked_rotor_current", "machine.starts_cold", "machine.starts_hot",
+                    "machine.heating_time_constant", "machine.cooling_time_constant")
+GENERATOR_MAKER_KEYS = ("machine.x2", "machine.negative_sequence_continuous", "machine.negative_sequence_k",
+                        "machine.stator_capacitance", "machine.third_harmonic_neutral_min",
+                        "machine.inertia_constant", "machine.frequency_limits")
 
 
 def default_makers_data(a: Answers) -> str:
     """Yes when the answers already hold any of the maker's optional data (a revision, an answers file)."""
-    keys = _motor_maker_keys() if is_motor(a) else _generator_maker_keys()
+    keys = MOTOR_MAKER_KEYS if is_motor(a) else GENERATOR_MAKER_KEYS
     return "yes" if any(a.has(k) for k in keys) else "no"
 
 
