@@ -276,9 +276,9 @@ def _drawings(record, st: _Styles, width: float, frame_height: float) -> list:
     return out
 
 
-_TEST_COLS = (("No.", 0.085), ("Test", 0.245), ("Initial state", 0.06), ("Applied, primary", 0.095),
-              ("Applied, relay side", 0.095), ("Expected time", 0.085), ("Accepted band", 0.14),
-              ("Measured time", 0.12), ("Pass / fail", 0.075))
+_TEST_COLS = (("No.", 0.08), ("Test (initial state)", 0.30), ("Applied, primary", 0.1),
+              ("Applied, relay side", 0.1), ("Expected time", 0.09), ("Accepted band", 0.145),
+              ("Measured time", 0.11), ("Pass / fail", 0.075))
 
 
 def _tests(record, st: _Styles, width: float) -> list:
@@ -286,17 +286,21 @@ def _tests(record, st: _Styles, width: float) -> list:
     rows = tables.commissioning_rows(record)
     if not rows:
         return out + [_p("The study produced no test points.", st.body)]
-    out.append(_p("Inject each value with the settings of this sheet applied to the relay; write the measured "
-                  "operate time and pass or fail. The accepted band is the expected time plus and minus its "
-                  "tolerance; the letter in brackets points to the tolerance rule under the table.", st.small))
+    out.append(_p("Inject each value with the settings of this sheet applied to the relay, starting from the "
+                  "initial state given; write the measured operate time and pass or fail. The accepted band is the "
+                  "expected time plus and minus its tolerance; the letter in brackets points to the tolerance rule "
+                  "under the table.", st.small))
     body = [[_p(name, st.head) for name, _ in _TEST_COLS]]
     for r in rows:
-        body.append([_p(r.number, st.cell_bold), _p(r.test, st.cell), _p(r.initial_state, st.cell),
+        test = markup(r.test)
+        if r.initial_state and r.initial_state != "—":
+            test += f"<br/><font color='#555555'>initial state: {markup(r.initial_state)}</font>"
+        body.append([_p(r.number, st.cell_bold), _p_raw(test, st.cell),
                      _p(r.applied_primary, st.cell), _p(r.applied_secondary, st.cell), _p(r.expected, st.cell),
                      _p(r.band + (f" [{r.tolerance_key}]" if r.tolerance_key else ""), st.cell), "", ""])
     cmds = [("LINEBELOW", (0, 0), (-1, 0), 1.0, st.accent), ("LINEBELOW", (0, 1), (-1, -1), 0.3, st.grey),
             ("BOX", (-2, 1), (-1, -1), 0.6, st.grey), ("INNERGRID", (-2, 1), (-1, -1), 0.6, st.grey),
-            ("TOPPADDING", (0, 1), (-1, -1), 5), ("BOTTOMPADDING", (0, 1), (-1, -1), 7)]
+            ("TOPPADDING", (0, 1), (-1, -1), 4), ("BOTTOMPADDING", (0, 1), (-1, -1), 6)]
     out.append(_table(body, [width * f for _, f in _TEST_COLS], cmds, repeat=1))
     for key, rule in tables.tolerance_notes(record):
         out.append(_p(f"[{key}] tolerance: {rule}", st.small))
