@@ -126,6 +126,15 @@ def test_changing_the_grounding_method_at_the_review_asks_the_new_questions(tmp_
     assert parse_toml(out.read_text())["grounding"] == {"method": "high-resistance", "fault_current_limit": "5 A"}
 
 
+def test_a_refusal_of_the_file_reader_at_the_review_is_put_right(tmp_path, capsys):
+    out = tmp_path / "m.toml"
+    nameplate = list(NAMEPLATE_MOTOR)
+    nameplate[3] = "1300"  # 13 % slip for a 4-pole motor at 50 Hz: the file reader refuses it at the review
+    assert press(IDENT_MOTOR + nameplate + REST_MOTOR + [ENTER, "1485"] + WRITE, session.run_new, output=out) == 0
+    assert parse_toml(out.read_text())["machine"]["rated_speed"] == "1485 rpm"
+    assert "machine.rated_speed: expected a full-load slip" in " ".join(capsys.readouterr().out.split())
+
+
 def test_ctrl_c_leaves_a_draft_that_resumes_where_it_stopped(tmp_path, capsys):
     out = tmp_path / "m.toml"
     stop = len(IDENT_MOTOR) + 5  # in the nameplate, after the power factor

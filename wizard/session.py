@@ -297,20 +297,21 @@ def review(a: Answers, *, title: str = "Review before writing") -> bool:
     problem, warnings = _validate(a)
     for w in warnings:
         say(f"  ! {w}")
+    options = [("write", "Write the machine file")]
     if problem is not None:
         say(f"  ✗ {problem}")
+        say("  The machine file cannot be written until this is put right.")
         q = flow.find(problem.key, a)
-        if q is not None:
-            say(f"  This answer must change before the file can be written: {q.label}.")
-            a.unmark(q.key)
-            return False
-    options = ([] if problem else [("write", "Write the machine file")]) + [
-        ("change", "Change an answer"), ("stop", "Stop here and keep the draft")]
+        options = [("again", f"Give the answer '{q.label}' again")] if q is not None else []
+    options += [("change", "Change an answer"), ("stop", "Stop here and keep the draft")]
     pick = choose("What next?", options)
     if pick == "write":
         return True
     if pick == "stop":
         raise _Stop
+    if pick == "again":
+        a.unmark(flow.find(problem.key, a).key)
+        return False
     sections = [(t, t) for t, _ in flow.review_rows(a)]
     section = choose("Which section?", sections)
     qs = [q for q in flow.applicable(a) if flow.section_title(q.section, a.kind) == section]
