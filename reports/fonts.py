@@ -70,6 +70,12 @@ def _in_main(ch: str) -> bool:
     return ord(ch) in _charset(SANS) or ch in "\n\t"
 
 
+def in_main_font(text: str) -> bool:
+    """True when every character of ``text`` is in the sheet font (no fallback needed)."""
+    chars = _charset(SANS)
+    return all(ord(ch) in chars for ch in text)
+
+
 def missing_glyphs(text: str) -> list[str]:
     """Characters of ``text`` that neither the sheet font nor the fallback font can draw (in order, once each)."""
     main, fallback = _charset(SANS), _charset(FALLBACK)

@@ -16,11 +16,12 @@ from __future__ import annotations
 
 import io
 from functools import lru_cache, partial
+from typing import NamedTuple
 
 from machines.errors import InputError, one_line
 from machines.notices import SAFETY_NOTICE
 from reports import tables
-from reports.fonts import SANS, SANS_BOLD, SANS_BOLD_ITALIC, SANS_ITALIC, markup, plain, register
+from reports.fonts import SANS, SANS_BOLD, SANS_BOLD_ITALIC, SANS_ITALIC, in_main_font, markup, plain, register
 from reports.plots import ACCENT_HEX, render
 
 PAGE_SIZES = ("A4", "letter")
@@ -92,9 +93,34 @@ class _Styles:
 
 
 def _p(text: object, style) -> object:
+    return _p_raw(markup(text, bold=style.fontName in (SANS_BOLD, SANS_BOLD_ITALIC)), style)
+
+
+@lru_cache(maxsize=1)
+def _paragraph_class():
     from reportlab.platypus import Paragraph
 
-    return Paragraph(markup(text, bold=style.fontName in (SANS_BOLD, SANS_BOLD_ITALIC)), style)
+    class SheetParagraph(Paragraph):
+        """A Paragraph that keeps its line breaks for a width it was already wrapped to.
+
+        reportlab wraps a table cell's paragraph to the same column width several times (row heights, page split,
+        drawing); the line breaks depend on the width alone, so the second and later wraps reuse the first.
+        """
+
+        _wrapped_for = None
+
+        def wrap(self, availWidth, availHeight):
+            if self._wrapped_for == availWidth:
+                return self.width, self.height
+            result = super().wrap(availWidth, availHeight)
+            self._wrapped_for = availWidth
+            return result
+
+        def split(self, availWidth, availHeight):
+            self._wrapped_for = None
+            return super().split(availWidth, availHeight)
+
+    return SheetParagraph
 
 
 def _heading(text: str, st: _Styles) -> list:
@@ -104,14 +130,54 @@ def _heading(text: str, st: _Styles) -> list:
     return [CondPageBreak(90), Paragraph(markup(text, bold=True), st.h1), rule]
 
 
+class _Cell(NamedTuple):
+    """A table cell's user text and style, resolved by :func:`_table` into a plain string or a Paragraph."""
+
+    text: str
+    style: object
+
+
+def _c(text: object, style) -> _Cell:
+    return _Cell(plain(text), style)
+
+
+_PAD = 3.0
+
+
 def _table(rows, widths, style_cmds, repeat: int = 0):
+    """A Table; a text cell that fits its column on one line in the sheet font is drawn as a plain string.
+
+    A plain string is not parsed as markup (so it needs no escaping) and costs a fraction of a Paragraph, which
+    reportlab wraps several times per table; text that needs wrapping or the fallback font stays a Paragraph.
+    """
+    from reportlab.pdfbase.pdfmetrics import stringWidth
     from reportlab.platypus import Table, TableStyle
 
-    t = Table(rows, colWidths=widths, repeatRows=repeat, hAlign="LEFT")
-    base = [("VALIGN", (0, 0), (-1, -1), "TOP"), ("LEFTPADDING", (0, 0), (-1, -1), 3),
-            ("RIGHTPADDING", (0, 0), (-1, -1), 3), ("TOPPADDING", (0, 0), (-1, -1), 2),
+    cmds: list = []
+    out_rows = []
+    for r, row in enumerate(rows):
+        out_row = []
+        for c, cell in enumerate(row):
+            if isinstance(cell, _Cell):
+                st = cell.style
+                text = cell.text
+                if not text:
+                    out_row.append("")
+                elif "\n" not in text and in_main_font(text) and \
+                        stringWidth(text, st.fontName, st.fontSize) <= widths[c] - 2 * _PAD:
+                    cmds += [("FONTNAME", (c, r), (c, r), st.fontName), ("FONTSIZE", (c, r), (c, r), st.fontSize),
+                             ("LEADING", (c, r), (c, r), st.leading), ("TEXTCOLOR", (c, r), (c, r), st.textColor)]
+                    out_row.append(text)
+                else:
+                    out_row.append(_p(text, st))
+            else:
+                out_row.append(cell)
+        out_rows.append(out_row)
+    t = Table(out_rows, colWidths=widths, repeatRows=repeat, hAlign="LEFT")
+    base = [("VALIGN", (0, 0), (-1, -1), "TOP"), ("LEFTPADDING", (0, 0), (-1, -1), _PAD),
+            ("RIGHTPADDING", (0, 0), (-1, -1), _PAD), ("TOPPADDING", (0, 0), (-1, -1), 2),
             ("BOTTOMPADDING", (0, 0), (-1, -1), 2.5)]
-    t.setStyle(TableStyle(base + list(style_cmds)))
+    t.setStyle(TableStyle(base + cmds + list(style_cmds)))
     return t
 
 
@@ -152,14 +218,14 @@ def _pairs_table(sections, st: _Styles, width: float):
                      ("LINEBELOW", (0, len(rows)), (-1, len(rows)), 0.4, st.grey)]
             if rows:
                 cmds.append(("TOPPADDING", (0, len(rows)), (-1, len(rows)), 6))
-            rows.append([_p(title, st.cell_bold), "", "", ""])
+            rows.append([_c(title, st.cell_bold), "", "", ""])
         for i in range(0, len(pairs), 2):
             row = []
             for label, value, *note in pairs[i:i + 2]:
                 cell = markup(value)
                 if note and note[0]:
                     cell += f"<br/><font size='6.5' color='#555555'>{markup(note[0])}</font>"
-                row += [_p(label, st.small), _p_raw(cell, st.cell)]
+                row += [_c(label, st.small), _p_raw(cell, st.cell)]
             rows.append(row + [""] * (4 - len(row)))
     return _table(rows, [width * f for f in (0.2, 0.3, 0.2, 0.3)], cmds)
 
@@ -176,7 +242,7 @@ def _inputs(record, st: _Styles, width: float) -> list:
         out.append(_pairs_table([("", derived)], st, width))
     for title, header, rows in derived_tables:
         n = len(header)
-        body = [[_p(h, st.head) for h in header]] + [[_p(v, st.cell) for v in row] for row in rows]
+        body = [[_c(h, st.head) for h in header]] + [[_c(v, st.cell) for v in row] for row in rows]
         out += [_condbreak(50), _p(title, st.cell_bold),
                 _table(body, [width * 0.8 / n] * n, [("LINEBELOW", (0, 0), (-1, 0), 0.6, st.accent),
                                                      ("LINEBELOW", (0, 1), (-1, -1), 0.25, st.grey)], repeat=1)]
@@ -190,7 +256,7 @@ def _condbreak(height: float):
 
 
 _SETTINGS_COLS = (("ID", 0.065), ("Function", 0.175), ("Setting", 0.19), ("Primary", 0.13), ("Relay side (secondary)", 0.115),
-                  ("Source", 0.115), ("Note", 0.21))
+                  ("Source", 0.135), ("Note", 0.19))
 
 
 def _settings(record, st: _Styles, width: float) -> list:
@@ -198,14 +264,14 @@ def _settings(record, st: _Styles, width: float) -> list:
     blocks = tables.settings_blocks(record)
     if not blocks:
         return out + [_p("The study produced no settings for this machine.", st.body)]
-    rows = [[_p(name, st.head) for name, _ in _SETTINGS_COLS]]
+    rows = [[_c(name, st.head) for name, _ in _SETTINGS_COLS]]
     cmds = [("LINEBELOW", (0, 0), (-1, 0), 1.0, st.accent)]
     for block in blocks:
         first = len(rows)
         for r in block.rows:
-            rows.append([_p(r.fid, st.cell_bold), _p(r.function, st.cell_bold), _p(r.setting, st.cell),
-                         _p(r.primary, st.cell), _p(r.relay_side, st.cell), _p(r.source, st.cell),
-                         _p(r.note, st.cell)])
+            rows.append([_c(r.fid, st.cell_bold), _c(r.function, st.cell_bold), _c(r.setting, st.cell),
+                         _c(r.primary, st.cell), _c(r.relay_side, st.cell), _c(r.source, st.cell),
+                         _c(r.note, st.cell)])
         basis = markup(block.basis) if block.basis else ""
         if block.references:
             basis += ("  " if basis else "") + f"<font name='{SANS}'>[{markup(block.references)}]</font>"
@@ -225,9 +291,7 @@ def _settings(record, st: _Styles, width: float) -> list:
 
 
 def _p_raw(markup_text: str, style):
-    from reportlab.platypus import Paragraph
-
-    return Paragraph(markup_text, style)
+    return _paragraph_class()(markup_text, style)
 
 
 def _findings(record, st: _Styles, width: float) -> list:
@@ -240,11 +304,11 @@ def _findings(record, st: _Styles, width: float) -> list:
     if not rows:
         return out + [_p("The study reported no findings.", st.body)]
     out.append(_p(f"{counts['FAIL']} failed, {counts['WARN']} warning(s), {counts['ok']} passed.", st.small))
-    body = [[_p("Result", st.head), _p("Function", st.head), _p("Finding", st.head)]]
+    body = [[_c("Result", st.head), _c("Function", st.head), _c("Finding", st.head)]]
     cmds = [("LINEBELOW", (0, 0), (-1, 0), 1.0, st.accent), ("LINEBELOW", (0, 1), (-1, -1), 0.3, st.grey)]
     for r in rows:
         style = st.cell_bold if r.status in ("FAIL", "WARN") else st.cell
-        body.append([_p(r.status, style), _p(r.fid or "machine", st.cell), _p(r.message, style)])
+        body.append([_c(r.status, style), _c(r.fid or "machine", st.cell), _c(r.message, style)])
         if r.status == "FAIL":
             cmds.append(("BOX", (0, len(body) - 1), (0, len(body) - 1), 1.2, st.accent))
     return out + [_table(body, [width * 0.08, width * 0.1, width * 0.82], cmds, repeat=1)]
@@ -290,22 +354,22 @@ def _tests(record, st: _Styles, width: float) -> list:
                   "initial state given; write the measured operate time and pass or fail. The accepted band is the "
                   "expected time plus and minus its tolerance; the letter in brackets points to the tolerance rule "
                   "under the table.", st.small))
-    body = [[_p(name, st.head) for name, _ in _TEST_COLS]]
+    body = [[_c(name, st.head) for name, _ in _TEST_COLS]]
     for r in rows:
         test = markup(r.test)
         if r.initial_state and r.initial_state != "—":
             test += f"<br/><font color='#555555'>initial state: {markup(r.initial_state)}</font>"
-        body.append([_p(r.number, st.cell_bold), _p_raw(test, st.cell),
-                     _p(r.applied_primary, st.cell), _p(r.applied_secondary, st.cell), _p(r.expected, st.cell),
-                     _p(r.band + (f" [{r.tolerance_key}]" if r.tolerance_key else ""), st.cell), "", ""])
+        body.append([_c(r.number, st.cell_bold), _p_raw(test, st.cell),
+                     _c(r.applied_primary, st.cell), _c(r.applied_secondary, st.cell), _c(r.expected, st.cell),
+                     _c(r.band + (f" [{r.tolerance_key}]" if r.tolerance_key else ""), st.cell), "", ""])
     cmds = [("LINEBELOW", (0, 0), (-1, 0), 1.0, st.accent), ("LINEBELOW", (0, 1), (-1, -1), 0.3, st.grey),
             ("BOX", (-2, 1), (-1, -1), 0.6, st.grey), ("INNERGRID", (-2, 1), (-1, -1), 0.6, st.grey),
             ("TOPPADDING", (0, 1), (-1, -1), 4), ("BOTTOMPADDING", (0, 1), (-1, -1), 6)]
     out.append(_table(body, [width * f for _, f in _TEST_COLS], cmds, repeat=1))
     for key, rule in tables.tolerance_notes(record):
         out.append(_p(f"[{key}] tolerance: {rule}", st.small))
-    blanks = [[_p("Tested by", st.small), "", _p("Date", st.small), "", _p("Relay and firmware", st.small), "",
-               _p("Test set", st.small), ""]]
+    blanks = [[_c("Tested by", st.small), "", _c("Date", st.small), "", _c("Relay and firmware", st.small), "",
+               _c("Test set", st.small), ""]]
     out.append(_table(blanks, [width * f for f in (0.09, 0.16, 0.05, 0.12, 0.14, 0.18, 0.08, 0.18)],
                       [("LINEBELOW", (1, 0), (1, 0), 0.5, st.grey), ("LINEBELOW", (3, 0), (3, 0), 0.5, st.grey),
                        ("LINEBELOW", (5, 0), (5, 0), 0.5, st.grey), ("LINEBELOW", (7, 0), (7, 0), 0.5, st.grey),
@@ -315,9 +379,9 @@ def _tests(record, st: _Styles, width: float) -> list:
 
 def _history(record, st: _Styles, width: float) -> list:
     out = _heading("Revision history", st)
-    body = [[_p(h, st.head) for h in ("Revision", "Date", "By", "Reason")]]
+    body = [[_c(h, st.head) for h in ("Revision", "Date", "By", "Reason")]]
     for rev, date, by, reason in tables.history_rows(record):
-        body.append([_p(rev, st.cell), _p(date, st.cell), _p(by, st.cell), _p(reason, st.cell)])
+        body.append([_c(rev, st.cell), _c(date, st.cell), _c(by, st.cell), _c(reason, st.cell)])
     return out + [_table(body, [width * f for f in (0.1, 0.14, 0.22, 0.54)],
                          [("LINEBELOW", (0, 0), (-1, 0), 1.0, st.accent),
                           ("LINEBELOW", (0, 1), (-1, -1), 0.3, st.grey)], repeat=1)]
@@ -327,9 +391,9 @@ def _signoff(record, st: _Styles, width: float) -> list:
     from reportlab.platypus import KeepTogether
 
     out = _heading("Sign-off", st)
-    body = [[_p(h, st.head) for h in ("", "Name", "Date", "Signature")]]
+    body = [[_c(h, st.head) for h in ("", "Name", "Date", "Signature")]]
     for role, name, date in tables.signoff_rows(record):
-        body.append([_p(role, st.cell_bold), _p(name, st.value), _p(date, st.value), ""])
+        body.append([_c(role, st.cell_bold), _c(name, st.value), _c(date, st.value), ""])
     cmds = [("LINEBELOW", (1, 1), (-1, -1), 0.6, st.grey), ("TOPPADDING", (0, 1), (-1, -1), 16),
             ("VALIGN", (0, 1), (-1, -1), "BOTTOM")]
     out.append(_table(body, [width * f for f in (0.14, 0.32, 0.18, 0.36)], cmds))

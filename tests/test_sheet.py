@@ -8,6 +8,7 @@ import shutil
 import subprocess
 import time
 import unicodedata
+from pathlib import Path
 
 import pytest
 from pypdf import PdfReader
@@ -232,3 +233,67 @@ def test_clipping_keeps_the_inside_part():
     # leaving and re-entering the box gives two pieces
     pieces = clip_polyline([(0.5, 0.5), (2.0, 0.5), (0.5, 0.8)], Axes(0.0, 1.0, 0.0, 1.0, False, False))
     assert len(pieces) == 2
+
+
+# ---------------------------------------------------------------------------------------------------- examples
+
+EXAMPLES = sorted((Path(__file__).resolve().parent.parent / "examples").glob("*.toml"))
+
+
+@pytest.mark.parametrize("path", EXAMPLES, ids=[p.stem for p in EXAMPLES])
+def test_example_sheets(path):
+    from machines.files import load_case
+    from machines.study import run_study
+
+    case, warnings = load_case(path)
+    record = run_study(case, warnings)
+    pdf = build_sheet(record)
+    pages = pages_text(pdf)
+    text = " ".join(pages)
+    assert record.tag in text
+    for block in tables.settings_blocks(record):
+        assert block.fid in text
+        for r in block.rows:
+            for value in (r.primary, r.relay_side):
+                if value:
+                    assert norm(value) in text, (block.fid, r.setting, value)
+    assert norm(SAFETY_NOTICE) in text
+    for i, page in enumerate(pages, start=1):
+        assert record.inputs_fingerprint in page
+        assert f"page {i} of {len(pages)}" in page
+    size = PdfReader(io.BytesIO(pdf)).pages[0].mediabox
+    expected = LETTER_PT if case.sheet.page_size == "letter" else A4_PT
+    assert (float(size.width), float(size.height)) == pytest.approx(expected, abs=0.01)
+
+
+def test_make_sheet_writes_a_safe_name_beside_the_file(tmp_path, capsys):
+    from reports.sheet_command import make_sheet
+
+    text = EXAMPLES[0].read_text("utf-8")
+    tag = next(line for line in text.splitlines() if line.startswith("tag = "))
+    machine = tmp_path / "m.toml"
+    machine.write_text(text.replace(tag, 'tag = "../up/M-1 <x>"'), "utf-8")
+    assert make_sheet(machine) in (0, 1)
+    written = [p.name for p in tmp_path.glob("*.pdf")]
+    assert len(written) == 1 and "/" not in written[0] and ".." not in written[0]
+    assert written[0].startswith("_up_M-1 _x_-rev")
+    assert capsys.readouterr().out.strip() == str(tmp_path / written[0])
+    out_dir = tmp_path / "out"
+    out_dir.mkdir()
+    make_sheet(machine, output=out_dir, page_size="letter")
+    assert [p.name for p in out_dir.glob("*.pdf")] == written
+
+
+def test_make_sheet_bad_page_size_names_the_option(tmp_path):
+    from reports.sheet_command import make_sheet
+
+    with pytest.raises(InputError, match="--page-size: expected A4 or letter, got 'A5'"):
+        make_sheet(EXAMPLES[0], page_size="A5")
+
+
+def test_unprintable_characters_are_reported():
+    from reports.fonts import missing_glyphs
+
+    # U+4E2D (CJK) is in neither Vera nor DejaVu Sans
+    assert missing_glyphs("P-中-1 Ω") == ["中"]
+    assert missing_glyphs("M-101 <spare> & co") == []
