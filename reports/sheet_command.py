@@ -72,13 +72,11 @@ def make_sheet(file: Path, output: Path | None = None, page_size: str | None = N
             page_size_of(page_size)  # bad --page-size: stop before any work
         except InputError as e:
             raise InputError("--page-size", e.detail) from None
-    password = None
-    if sign is not None:
-        if not Path(sign).is_file():
-            raise InputError(str(sign), "no such key file (expected a PKCS#12 .p12/.pfx file)")
-        password = signing_password(Path(sign))
+    if sign is not None and not Path(sign).is_file():
+        raise InputError(str(sign), "no such key file (expected a PKCS#12 .p12/.pfx file)")
     case, warnings = load_case(file)
     record = run_study(case, warnings)
+    password = signing_password(Path(sign)) if sign is not None else None  # asked once the inputs are known good
     pdf = build_sheet(record, page_size)
     _warn_missing_glyphs(record)
     if sign is not None:

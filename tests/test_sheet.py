@@ -297,3 +297,18 @@ def test_unprintable_characters_are_reported():
     # U+4E2D (CJK) is in neither Vera nor DejaVu Sans
     assert missing_glyphs("P-中-1 Ω") == ["中"]
     assert missing_glyphs("M-101 <spare> & co") == []
+
+
+def test_same_bytes_in_another_process():
+    # batch builds sheets in spawned processes: string hashing differs per process and must not change the bytes
+    import hashlib
+    import os
+    import sys
+
+    code = ("import hashlib, sys; sys.path.insert(0, 'tests'); from test_sheet_records import motor_record; "
+            "from reports.sheet import build_sheet; "
+            "print(hashlib.sha256(build_sheet(motor_record(tag='Насос-3 Ü'))).hexdigest())")
+    root = Path(__file__).resolve().parent.parent
+    digests = {subprocess.run([sys.executable, "-c", code], cwd=root, capture_output=True, text=True, check=True,
+                              env={**os.environ, "PYTHONHASHSEED": seed}).stdout.strip() for seed in ("1", "2")}
+    assert digests == {hashlib.sha256(build_sheet(motor_record(tag="Насос-3 Ü"))).hexdigest()}
