@@ -302,6 +302,7 @@ def write_atomic(path: str | Path, text: str | bytes) -> None:
             fh.write(data)
             fh.flush()
             os.fsync(fh.fileno())
+        os.chmod(tmp, _mode_for(p))  # mkstemp makes 0600; keep the target's mode, else the umask's default
         os.replace(tmp, p)
     except BaseException:
         try:
@@ -309,6 +310,15 @@ def write_atomic(path: str | Path, text: str | bytes) -> None:
         except OSError:
             pass
         raise
+
+
+def _mode_for(path: Path) -> int:
+    try:
+        return path.stat().st_mode & 0o777
+    except OSError:
+        umask = os.umask(0)
+        os.umask(umask)
+        return 0o666 & ~umask
 
 
 def write_machine_file(path: str | Path, data: dict) -> None:

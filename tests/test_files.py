@@ -173,3 +173,12 @@ def test_missing_file_and_folder(tmp_path):
 def test_dumps_is_readable_toml():
     text = dumps(motor_data())
     assert tomllib.loads(text) == motor_data()
+
+
+def test_written_files_have_ordinary_permissions(tmp_path):
+    target = tmp_path / "m.toml"
+    write_machine_file(target, motor_data())
+    assert target.stat().st_mode & 0o044  # readable by group/others as the umask allows, not 0600
+    target.chmod(0o640)
+    write_machine_file(target, motor_data())
+    assert target.stat().st_mode & 0o777 == 0o640  # an existing file keeps its mode
