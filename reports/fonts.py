@@ -1,7 +1,7 @@
 """The sheet's fonts, and user text made safe for a reportlab Paragraph.
 
-The sheet is set in Bitstream Vera, which ships inside reportlab (so every installation draws the same sheet). Vera
-covers Latin-1 and the symbols the sheet prints (Ω, µ, ², ·, ≥, —) but not Greek, Cyrillic and the like. A tag such
+The sheet is set in Bitstream Vera, which ships inside reportlab (so every installation draws the same sheet).
+Vera covers Latin-1 and the symbols the sheet prints (Ω, µ, ², ·, ≥, —) but not Greek, Cyrillic and the like. A tag such
 as ``Насос-3`` must still print as written, so characters Vera lacks are set in DejaVu Sans when the system has it
 (Debian's fonts-dejavu-core); a character neither font holds would print as an empty box, and
 :func:`missing_glyphs` names such characters so a caller can warn.

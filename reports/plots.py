@@ -301,7 +301,7 @@ def render(d, width: float, height: float):
         height = top + bottom + legend_h + plot_h
     axes = Axes(x0, x1, y0, y1, log_x, log_y)
 
-    drawing = Drawing(width, height)
+    drawing = Drawing(width, height, initialFontName=SANS, initialFontSize=FONT_SIZE)
     lp = LinePlot()
     lp.x, lp.y, lp.width, lp.height = left, bottom + legend_h, plot_w, plot_h
     lp.xValueAxis = LogXValueAxis() if log_x else XValueAxis()

@@ -174,7 +174,8 @@ def _table(rows, widths, style_cmds, repeat: int = 0):
                 out_row.append(cell)
         out_rows.append(out_row)
     t = Table(out_rows, colWidths=widths, repeatRows=repeat, hAlign="LEFT")
-    base = [("VALIGN", (0, 0), (-1, -1), "TOP"), ("LEFTPADDING", (0, 0), (-1, -1), _PAD),
+    base = [("FONTNAME", (0, 0), (-1, -1), SANS), ("VALIGN", (0, 0), (-1, -1), "TOP"),
+            ("LEFTPADDING", (0, 0), (-1, -1), _PAD),
             ("RIGHTPADDING", (0, 0), (-1, -1), _PAD), ("TOPPADDING", (0, 0), (-1, -1), 2),
             ("BOTTOMPADDING", (0, 0), (-1, -1), 2.5)]
     t.setStyle(TableStyle(base + cmds + list(style_cmds)))
@@ -255,8 +256,8 @@ def _condbreak(height: float):
     return CondPageBreak(height)
 
 
-_SETTINGS_COLS = (("ID", 0.065), ("Function", 0.175), ("Setting", 0.19), ("Primary", 0.13), ("Relay side (secondary)", 0.115),
-                  ("Source", 0.135), ("Note", 0.19))
+_SETTINGS_COLS = (("ID", 0.065), ("Function", 0.175), ("Setting", 0.18), ("Primary", 0.13),
+                  ("Relay side (secondary)", 0.115), ("Source", 0.145), ("Note", 0.19))
 
 
 def _settings(record, st: _Styles, width: float) -> list:

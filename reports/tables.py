@@ -93,8 +93,9 @@ def input_sections(record) -> list[tuple[str, list[tuple[str, str]]]]:
     return out
 
 
-_ACRONYMS = {"ct": "CT", "vt": "VT", "pu": "pu", "i2": "I2", "x2": "X2", "xd": "Xd", "xq": "Xq", "lr": "LR", "nema": "NEMA", "iec": "IEC", "ieee": "IEEE",
-             "vhz": "V/Hz", "lv": "LV", "hv": "HV", "mv": "MV", "rocof": "RoCoF", "avr": "AVR"}
+_ACRONYMS = {"ct": "CT", "vt": "VT", "pu": "pu", "i2": "I2", "x2": "X2", "xd": "Xd", "xq": "Xq", "lr": "LR",
+             "nema": "NEMA", "iec": "IEC", "ieee": "IEEE", "vhz": "V/Hz", "lv": "LV", "hv": "HV", "mv": "MV",
+             "rocof": "RoCoF", "avr": "AVR"}
 
 
 def printed_label(key: str, js: dict | None = None) -> str:

@@ -312,3 +312,16 @@ def test_same_bytes_in_another_process():
     digests = {subprocess.run([sys.executable, "-c", code], cwd=root, capture_output=True, text=True, check=True,
                               env={**os.environ, "PYTHONHASHSEED": seed}).stdout.strip() for seed in ("1", "2")}
     assert digests == {hashlib.sha256(build_sheet(motor_record(tag="Насос-3 Ü"))).hexdigest()}
+
+
+def test_every_font_is_embedded(sheet):
+    # a filed sheet must print the same everywhere: no font may be left to the viewer's substitutes
+    fonts = {}
+    for page in PdfReader(io.BytesIO(sheet)).pages:
+        for name, ref in page["/Resources"]["/Font"].items():
+            font = ref.get_object()
+            fonts[str(font["/BaseFont"])] = font
+    assert fonts
+    for base, font in fonts.items():
+        descriptor = font["/FontDescriptor"].get_object()
+        assert any(k in descriptor for k in ("/FontFile", "/FontFile2", "/FontFile3")), base
