@@ -240,3 +240,27 @@ def test_password_prompt_is_hidden(tmp_path, key, monkeypatch):
     assert sheet_command.make_sheet(machine, sign=key) == 0
     assert asked == [f"Password for {key}: "]
     assert verify_pdf((tmp_path / "CH-M-101-rev1.pdf").read_bytes()).ok
+
+
+def test_cli_verify_tampered_exit_1(tmp_path, signed, monkeypatch, capsys):
+    from wizard.cli import main
+
+    path = tmp_path / "tampered.pdf"
+    path.write_bytes(tampered(signed))
+    monkeypatch.setattr(sys, "argv", ["relaywright", "verify", str(path)])
+    with pytest.raises(SystemExit) as exc:
+        main()
+    assert exc.value.code == 1
+    out = capsys.readouterr().out
+    assert "signature: NOT VALID: do not rely on this copy of the sheet" in out
+    assert "the signed content was changed after signing" in out
+
+
+def test_building_a_sheet_does_not_import_pyhanko():
+    # pyHanko costs about half a second to import (STACK.md): only signing and verifying may load it
+    code = ("import sys; sys.path.insert(0, 'tests'); from test_sheet_records import motor_record; "
+            "from reports.sheet import build_sheet; import reports.signing, reports.sheet_command; "
+            "build_sheet(motor_record()); print('pyhanko' in sys.modules)")
+    root = Path(__file__).resolve().parent.parent
+    out = subprocess.run([sys.executable, "-c", code], cwd=root, capture_output=True, text=True, check=True)
+    assert out.stdout.strip() == "False"
