@@ -108,4 +108,4 @@ def settings(ctx: StudyContext) -> FunctionSettings:
              f"Heating weight K = T_LR/(s_FL·I_LR²) = {k_weight:.2f}; rotor limit K2 = I_LR²·t_sc = {k2:.0f} s.")
     return FunctionSettings(FID, "Current unbalance / negative sequence", s, basis,
                             ["NEMA MG 1 14.36 and Fig. 14-1 (voltage unbalance derating)", "IEC 60034-1",
-                             "REFERENCE 5.3 (heating weight), 5.4 (settings)"], checks, tps)
+                             "heating weight K = T_LR/(s·I_LR²) from the rotor equivalent circuit [derived]"], checks, tps)

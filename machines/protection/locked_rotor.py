@@ -162,4 +162,4 @@ def settings(ctx: StudyContext) -> FunctionSettings:
              "complete.")
     return FunctionSettings(FID, "Locked rotor / stall and running jam", s, basis,
                             ["IEEE Std C37.96 (motor protection guide), stall protection [value from memory]",
-                             "IEEE Std 620 (thermal-limit curves)", "REFERENCE 3.2, 3.4"], checks, tps)
+                             "IEEE Std 620 (thermal-limit curves)"], checks, tps)

@@ -152,7 +152,7 @@ def _record(ctx: StudyContext, b: MotorBasis, v_min_source) -> None:
     d["acceleration_time"] = Setting(acc if math.isfinite(acc) else None, "s", "derived",
                                      label="Acceleration time at minimum starting voltage",
                                      note="does not accelerate" if not b.start_min.accelerates else
-                                     "torque-speed model in machines.starting")
+                                     "Kloss torque curve, J·dω/dt integrated")
     if b.start_normal is not b.start_min:
         a2 = b.start_normal.acceleration_time
         d["acceleration_time_normal"] = Setting(a2 if math.isfinite(a2) else None, "s", "derived",

@@ -55,4 +55,4 @@ def settings(ctx: StudyContext) -> FunctionSettings | None:
     basis = (f"Recommended ({why}). Percentage differential, slope {slope:.0%}, minimum operate {pickup / b.flc:.0%} "
              "of FLC (IEEE C37.96-1988 §4.2.17).")
     return FunctionSettings(FID, "Motor differential", s, basis,
-                            ["IEEE Std C37.96-1988 §4.2.17", "REFERENCE 9.5"], checks, tps)
+                            ["IEEE Std C37.96-1988 §4.2.17"], checks, tps)

@@ -120,4 +120,4 @@ def settings(ctx: StudyContext) -> FunctionSettings:
              + (" (alarm only: " + g.method + " grounding)." if alarm_only else "."))
     return FunctionSettings(FID, "Earth fault (core-balance)", s, basis,
                             ["IEEE Std C37.96 (motor protection guide) [value from memory]",
-                             "REFERENCE 7.2 (pickup bounds)"], checks, tps)
+                             "Breitkreutz & Frere, IEEE Trans. IA 31(6), 1995 (bounds of the pickup)"], checks, tps)

@@ -44,4 +44,4 @@ def settings(ctx: StudyContext) -> FunctionSettings | None:
                                     description=f"step to {st['frequency'] - TEST_STEP:g} Hz: sheds after the delay"))
     s = {"stages": Setting(stages, "", "entered", label="Stages (frequency, delay)")}
     basis = "Load-shedding stages as given by the system's shedding plan; checked for order and delays."
-    return FunctionSettings(FID, "Underfrequency (load shedding)", s, basis, ["REFERENCE 8.2"], checks, tps)
+    return FunctionSettings(FID, "Underfrequency (load shedding)", s, basis, ["NERC PRC-006 (under-frequency load shedding) [value from memory]"], checks, tps)

@@ -71,5 +71,5 @@ def settings(ctx: StudyContext) -> FunctionSettings:
     basis = (f"Pickup {pu:.2f} pu for {delay:g} s: rides through faults cleared elsewhere and lets the motor "
              f"reaccelerate; below the minimum starting voltage {b.minimum_voltage:.3f} pu so starts do not trip.")
     return FunctionSettings(FID, "Undervoltage", s, basis,
-                            ["IEEE Std C37.96 (motor protection guide) [value from memory]", "REFERENCE 13"],
+                            ["IEEE Std C37.96 (motor protection guide) [value from memory]"],
                             checks, tps)

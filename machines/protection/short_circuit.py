@@ -107,7 +107,7 @@ def settings(ctx: StudyContext) -> FunctionSettings:
     return FunctionSettings(FID, "Instantaneous phase overcurrent (short circuit)", s, basis,
                             ["IEC 60034-12 (asymmetrical starting peak note)",
                              "IEEE Std C37.96 (motor protection guide) [value from memory]",
-                             "UL 347 (fused contactors, take-over) [practice]", "REFERENCE 4.1, 4.2"],
+                             "UL 347 (fused contactors, take-over) [practice]"],
                             checks, tps, enabled=bool(enabled))
 
 

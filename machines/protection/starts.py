@@ -98,5 +98,5 @@ def settings(ctx: StudyContext) -> FunctionSettings:
              f"{tau_c / 60:.0f} min.{basis_mg10}")
     return FunctionSettings(FID, "Starts supervision / restart inhibit", s, basis,
                             ["NEMA MG 1 12.54 and Part 20 start duty [value from memory]",
-                             "IEC 60034-12 [value from memory]", "NEMA MG 10 Table 2-3", "REFERENCE 2.3"],
+                             "IEC 60034-12 [value from memory]", "NEMA MG 10 Table 2-3"],
                             checks, tps)

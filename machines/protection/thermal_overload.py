@@ -86,7 +86,7 @@ def settings(ctx: StudyContext) -> FunctionSettings:
         tau0, t_src, t_basis = m.heating_time_constant, "maker-data", "the maker's heating time constant"
     elif pickup > flc and i_lr > pickup:
         tau0 = time_constant_from_trip_time(m.safe_stall_time_hot, i_lr, pickup, flc)
-        t_src, t_basis = "derived", "fitted to the hot safe stall time at locked-rotor current (REFERENCE 2.2)"
+        t_src, t_basis = "derived", "fitted to the hot safe stall time at locked-rotor current (single-body replica)"
         if b.start_min.accelerates:
             need = time_constant_for_start(b.start_min, pickup, (flc / pickup) ** 2)
             if need > tau0:
@@ -155,11 +155,11 @@ def settings(ctx: StudyContext) -> FunctionSettings:
         heat = b.start_min.i2t() / (b.lr_current ** 2 * m.safe_stall_time_cold)
         ctx.derived["start_heat_fraction"] = Setting(heat, "pu", "derived",
                                                      label="Rotor heat of one start / cold stall heat",
-                                                     note="∫I²dt / (I_LR²·t_sc), adiabatic (REFERENCE 2.3)")
+                                                     note="∫I²dt / (I_LR²·t_sc), adiabatic")
         tau_cold_fit = time_constant_from_trip_time(m.safe_stall_time_cold, i_lr, pickup) if i_lr > pickup else tau
         ctx.derived["start_capacity_reference"] = Setting(
             start_capacity(b.start_min.acceleration_time, m.safe_stall_time_cold, tau_cold_fit), "pu", "derived",
-            label="Start capacity by REFERENCE 2.3", note="(1 − e^(−t_st/τ))/(1 − e^(−t_sc/τ)), τ fitted to cold stall")
+            label="Start capacity (replica fitted to cold stall)", note="(1 − e^(−t_st/τ))/(1 − e^(−t_sc/τ)), τ fitted to cold stall")
 
     ct = ctx.ct
     s = {
@@ -190,8 +190,7 @@ def settings(ctx: StudyContext) -> FunctionSettings:
              f"locked rotor in {t_hot:.1f} s (hot stall {m.safe_stall_time_hot:g} s), from cold in {t_cold:.1f} s "
              f"(cold stall {m.safe_stall_time_cold:g} s, covered by 51LR). Cooling constant {tau_c / 60:.1f} min.")
     return FunctionSettings(FID, "Stator thermal overload (thermal replica)", s, basis,
-                            ["IEC 60255-149:2013 thermal replica", "NFPA 70 (NEC) 430.32(A)(1)",
-                             "REFERENCE 2.2 (fit of τ), 2.3 (start capacity)"], checks, tps)
+                            ["IEC 60255-149:2013 thermal replica", "NFPA 70 (NEC) 430.32(A)(1)"], checks, tps)
 
 
 def operate_time(ctx: StudyContext, current: float, prior: float = 0.0) -> float:
