@@ -2,7 +2,7 @@
 
 Layout only. The rows are built as plain strings by :func:`index_rows` (a pure function) and set in a table on
 landscape pages, black on white with the sheet's one accent colour for the title and the header rule, so it reads
-when photocopied. The PDF is built with ``invariant=True``: the same rows give the same bytes.
+when photocopied; every font is the sheet's own, embedded. The PDF is built with ``invariant=True``: the same rows give the same bytes.
 """
 
 from __future__ import annotations
@@ -20,7 +20,7 @@ HEADER = ("Tag", "Description", "Rev.", "Findings", "Sheet", "Inputs fingerprint
 WIDTHS = (80, 186, 28, 72, 110, 266)  # points; landscape A4 and letter leave 770 pt between the margins
 MARGIN = 36
 FONT_SIZE = 7.5
-MONO, MONO_SIZE = "Courier", 6.0  # the fingerprint is hexadecimal: the built-in Courier holds it
+FINGERPRINT_SIZE = 5.8  # points: "sha256:" and 64 hex digits fit the column on one line
 
 
 @dataclass
@@ -109,7 +109,7 @@ def build_index(rows: list[IndexRow], page_size: str = "A4", site: str = "") -> 
     accent = HexColor(ACCENT_HEX)
     body = ParagraphStyle("index-body", fontName=SANS, fontSize=FONT_SIZE, leading=FONT_SIZE * 1.2)
     bold = ParagraphStyle("index-bold", parent=body, fontName=SANS_BOLD)
-    mono = ParagraphStyle("index-mono", parent=body, fontName=MONO, fontSize=MONO_SIZE, leading=FONT_SIZE * 1.2)
+    small = ParagraphStyle("index-small", parent=body, fontSize=FINGERPRINT_SIZE, leading=FONT_SIZE * 1.2)
     title = ParagraphStyle("index-title", fontName=SANS_BOLD, fontSize=15, leading=19, textColor=accent)
     sub = ParagraphStyle("index-sub", parent=body, fontSize=9, leading=12)
 
@@ -119,9 +119,10 @@ def build_index(rows: list[IndexRow], page_size: str = "A4", site: str = "") -> 
         strong = bold if r.status in ("fail", "bad") else body
         data.append([Paragraph(markup(p.tag), bold), Paragraph(markup(p.description), body),
                      Paragraph(markup(p.revision), body), Paragraph(markup(p.findings), strong),
-                     Paragraph(markup(p.sheet), body), Paragraph(markup(p.fingerprint), mono)])
+                     Paragraph(markup(p.sheet), body), Paragraph(markup(p.fingerprint), small)])
     table = Table(data, colWidths=WIDTHS, repeatRows=1)
     table.setStyle(TableStyle([
+        ("FONTNAME", (0, 0), (-1, -1), SANS),  # else an empty cell would bring in an unembedded Helvetica
         ("VALIGN", (0, 0), (-1, -1), "TOP"),
         ("LINEBELOW", (0, 0), (-1, 0), 1.2, accent),
         ("LINEBELOW", (0, 1), (-1, -1), 0.25, black),
@@ -145,6 +146,7 @@ def build_index(rows: list[IndexRow], page_size: str = "A4", site: str = "") -> 
         canvas.restoreState()
 
     doc = SimpleDocTemplate(buf, pagesize=size, leftMargin=MARGIN, rightMargin=MARGIN, topMargin=MARGIN,
-                            bottomMargin=MARGIN + 6, title=TITLE, author="relaywright", invariant=True)
+                            bottomMargin=MARGIN + 6, title=TITLE, author="relaywright", invariant=True,
+                            initialFontName=SANS, initialFontSize=FONT_SIZE)
     doc.build(story, onFirstPage=footer, onLaterPages=footer)
     return buf.getvalue()

@@ -103,6 +103,7 @@ def test_index_lists_every_machine_file(plant, tmp_path, capsys):
     assert "broken.toml" in text and "bad input" in text
     assert "tools.toml" not in text
     assert "licensed engineer" in text  # the caution is on the index too
+    assert b"/BaseFont /Helvetica" not in (out / "index.pdf").read_bytes()  # every font is embedded
 
 
 def test_current_sheets_are_kept_unless_forced(plant, tmp_path, capsys):
@@ -310,14 +311,3 @@ def test_a_dying_worker_is_reported_not_waited_for(plant, tmp_path):
     assert by_path["north/chiller.toml"].status in ("ok", "warn")
     assert not (out / "CW-P-201_spare_co-rev2.pdf").exists()
 
-
-def test_doctests_of_the_batch_and_index_modules():
-    # pyproject's testpaths collect doctests under machines/ only; these modules carry their own
-    import doctest
-
-    import reports.changes
-    import reports.index
-    import wizard.batch
-
-    for module in (wizard.batch, reports.index, reports.changes):
-        assert doctest.testmod(module, optionflags=doctest.NORMALIZE_WHITESPACE).failed == 0, module.__name__
