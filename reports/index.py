@@ -11,7 +11,7 @@ import io
 from dataclasses import dataclass
 from typing import NamedTuple
 
-from machines.notices import CAUTION_LINE
+from reports.notices import CAUTION_LINE
 from reports.fonts import SANS, SANS_BOLD, markup, register
 from reports.plots import ACCENT_HEX
 

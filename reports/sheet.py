@@ -19,7 +19,7 @@ from functools import lru_cache, partial
 from typing import NamedTuple
 
 from machines.errors import InputError, one_line
-from machines.notices import SAFETY_NOTICE
+from reports.notices import SAFETY_NOTICE
 from reports import tables
 from reports.fonts import SANS, SANS_BOLD, SANS_BOLD_ITALIC, SANS_ITALIC, in_main_font, markup, plain, register
 from reports.plots import ACCENT_HEX, render

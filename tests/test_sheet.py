@@ -14,7 +14,7 @@ import pytest
 from pypdf import PdfReader
 
 from machines.errors import InputError
-from machines.notices import SAFETY_NOTICE
+from reports.notices import SAFETY_NOTICE
 from reports import tables
 from reports.fonts import register
 from reports.sheet import build_sheet

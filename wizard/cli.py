@@ -15,7 +15,7 @@ from typing import Annotated, Optional
 
 import typer
 
-from machines.notices import CAUTION_LINE
+from reports.notices import CAUTION_LINE
 from wizard import __version__
 
 app = typer.Typer(

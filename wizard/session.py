@@ -18,7 +18,7 @@ from pathlib import Path
 
 from machines.errors import InputError
 from machines.files import case_from_dict, file_revision, parse_toml, read_text, write_atomic, write_machine_file
-from machines.notices import CAUTION_LINE
+from reports.notices import CAUTION_LINE
 from wizard import flow
 from wizard.drafts import Draft, draft_path, free_draft_path, load_draft, timestamp_name
 from wizard.flow import Answers

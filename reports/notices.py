@@ -1,4 +1,4 @@
-"""The safety cautions every screen and every sheet carries (one wording, used everywhere)."""
+"""The safety cautions every screen and every sheet carries (one wording, used by the CLI and the reports)."""
 
 CAUTION_LINE = (
     "Caution: settings proposed by relaywright must be reviewed and approved by a competent, licensed engineer; "
