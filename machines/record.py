@@ -214,8 +214,15 @@ class SettingsRecord:
             "inputs": self.inputs,
         }
 
-    def dumps(self) -> str:
-        return json.dumps(self.to_json(), indent=2, ensure_ascii=False, allow_nan=False)
+    def dumps(self, indent: int | None = 2) -> str:
+        """The JSON text; ``indent=None`` gives the compact form (for files other programs read)."""
+        return dumps_json(self.to_json(), indent)
+
+
+def dumps_json(data: dict, indent: int | None = 2) -> str:
+    """JSON text of a record's plain data (compact when ``indent`` is None: Python's fast encoder)."""
+    separators = None if indent is not None else (",", ":")
+    return json.dumps(data, indent=indent, ensure_ascii=False, allow_nan=False, separators=separators)
 
 
 def _clean(v: Any) -> Any:

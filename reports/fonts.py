@@ -89,6 +89,8 @@ def missing_glyphs(text: str) -> list[str]:
 def plain(text: object) -> str:
     """User text as one printable string: control characters (other than newline) shown as spaces."""
     s = "" if text is None else str(text)
+    if s.isprintable():  # nearly always: no need to look at each character
+        return s
     return "".join(ch if ch.isprintable() or ch == "\n" else " " for ch in s)
 
 

@@ -18,6 +18,7 @@ Exit code: the worst outcome (0 ok or warnings, 1 a failed check, 2 bad input).
 
 from __future__ import annotations
 
+import dataclasses
 import os
 import re
 import signal
@@ -47,11 +48,14 @@ class Task:
     """One machine file for a worker: its parsed data and the output name chosen for it."""
 
     path: str  #: as shown to the user (relative to DIR)
-    data: dict
+    data: dict | None
     name: str  #: output file name without extension
     out: str
     force: bool
     tag: str = ""  #: as the file gives it (unvalidated: for the summary when the file turns out bad)
+    case: Any = None  #: the validated MachineCase, when the main process has already validated the data
+    warnings: tuple = ()
+    error: str = ""  #: the one-line error when validation failed
 
 
 @dataclass
@@ -241,15 +245,15 @@ def process_machine(task: Task) -> Outcome:
 
 
 def _process(task: Task) -> Outcome:
-    import json
-
     from machines.errors import InputError
     from machines.files import case_from_dict, write_atomic
-    from machines.record import inputs_fingerprint
+    from machines.record import dumps_json, inputs_fingerprint
 
     out = Path(task.out)
     pdf, record_path = out / f"{task.name}.pdf", out / f"{task.name}.json"
-    case, warnings = case_from_dict(task.data)
+    if task.error:
+        return Outcome(task.path, "bad", task.error, tag=task.tag)
+    case, warnings = (task.case, list(task.warnings)) if task.case is not None else case_from_dict(task.data)
     fingerprint = inputs_fingerprint(case)
     old = _read_record(record_path)
     if old is not None and old.get("revision") == case.sheet.revision:
@@ -266,11 +270,29 @@ def _process(task: Task) -> Outcome:
     from reports.sheet import build_sheet
 
     record = run_study(case, warnings)
-    text = record.dumps() + "\n"
+    data = record.to_json()
+    text = dumps_json(data, indent=None) + "\n"  # compact: other programs read it (``settings --json`` is pretty)
     sheet = build_sheet(record)
     write_atomic(pdf, sheet)
     write_atomic(record_path, text)  # last: a record in OUT always stands beside its finished sheet
-    return _outcome(task, json.loads(text), current=False)
+    return _outcome(task, data, current=False)
+
+
+def validated(task: Task) -> Task:
+    """The task with its machine data validated here (in the main process, while the workers draw).
+
+    Workers then receive the validated case and never build a units registry of their own.
+    """
+    from machines.errors import InputError
+    from machines.files import case_from_dict
+
+    try:
+        case, warnings = case_from_dict(task.data)
+    except InputError as e:
+        return dataclasses.replace(task, data=None, error=str(e))
+    except Exception:  # left for the worker, which reports it as this file's failure
+        return task
+    return dataclasses.replace(task, data=None, case=case, warnings=tuple(warnings))
 
 
 def _read_record(path: Path) -> dict | None:
@@ -389,7 +411,7 @@ def _run_pool(tasks: list[Task], n: int, done, job=process_machine) -> None:
     finished: set[str] = set()
     lost = 0
     try:
-        results = pool.imap_unordered(job, tasks, chunksize=1)
+        results = pool.imap_unordered(job, (validated(t) for t in tasks), chunksize=1)
         while len(finished) + lost < len(tasks):
             try:
                 outcome = results.next(timeout=0.5)
