@@ -279,8 +279,10 @@ def blank_locked_rotor_current(a: Answers) -> str | None:
     rng, i_r = code_letter_currents(a), rated_current(a)
     span = ""
     if rng and i_r:
-        hi = f"{_number(rng[1])} A" if math.isfinite(rng[1]) else "no upper limit"
-        span = f": {_number(rng[0])} A to {hi} ({rng[0] / i_r:.2f} pu and up)"
+        if math.isfinite(rng[1]):
+            span = f": {_number(rng[0])} A to {_number(rng[1])} A ({rng[0] / i_r:.2f} to {rng[1] / i_r:.2f} pu)"
+        else:
+            span = f": {_number(rng[0])} A and up ({rng[0] / i_r:.2f} pu and up)"
     return f"taken from code letter {letter}{span}"
 
 
@@ -531,7 +533,7 @@ QUESTIONS: tuple[Question, ...] = (
     Question("supply.x_over_r", "X/R ratio at the bus", "X/R", "supply"),
     Question("supply.minimum_starting_voltage", "Lowest bus voltage at which the motor must still start",
              "Lowest starting voltage", "supply", when=M, help="pu of nominal, e.g. 0.85 pu",
-             blank=constant("full voltage")),
+             blank=constant("computed from the fault level and the starting current")),
     Question("supply.starter", "What switches the motor?", "Starter", "supply", when=M,
              choices=(("breaker", "a circuit breaker"), ("fused-contactor", "a contactor with power fuses"))),
     Question("supply.contactor_breaking_current", "Rated breaking current of the contactor", "Contactor breaking "
