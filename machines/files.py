@@ -110,6 +110,12 @@ def parse_value(spec: FieldSpec, raw: Any, key: str, *, rated_current: float | N
         return raw.strip().upper()
     if kind == "ratio":
         return parse_ratio(raw, key, spec.unit)
+    if kind == "ct_class":
+        from machines.standards.ct_saturation import check_relaying_class
+
+        if not isinstance(raw, str) or len(raw) > 20:
+            raise InputError(key, f"expected a CT class such as 'C200' or '5P20', got {one_line(raw)}")
+        return check_relaying_class(raw, key)
     if kind == "current_or_pu":
         text = raw
         if isinstance(raw, (int, float)) and not isinstance(raw, bool):

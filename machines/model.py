@@ -25,7 +25,8 @@ class FieldSpec:
 
     kind: a kind from ``machines.units.KINDS``, or ``"text"``, ``"choice"``, ``"integer"``, ``"boolean"``,
     ``"ratio"`` (instrument-transformer ratio such as ``"200/1 A"``), ``"letter"`` (NEMA code letter),
-    ``"current_or_pu"`` (amperes or per-unit of rated current), ``"table"`` (a list of sub-tables).
+    ``"current_or_pu"`` (amperes or per-unit of rated current), ``"table"`` (a list of sub-tables),
+    ``"ct_class"`` (an IEEE C57.13 relaying class such as ``"C200"`` or an IEC 61869-2 class such as ``"5P20"``).
     """
 
     kind: str
@@ -521,12 +522,14 @@ class Instruments:
     ground_ct: Ratio | None = spec("ratio", "A", help="core-balance CT, e.g. '50/1 A'")
     vt: Ratio | None = spec("ratio", "V", help="e.g. '6600/110 V'")
     neutral_vt: Ratio | None = spec("ratio", "V", help="neutral voltage transformer, if not a grounding transformer")
-    phase_ct_class: str | None = spec("text", help="IEEE C57.13 class, e.g. 'C200'")
+    phase_ct_class: str | None = spec("ct_class", help="IEEE C57.13 class, e.g. 'C200' (or IEC '5P20')")
     phase_ct_burden: float | None = spec(
         "impedance", "ohm", lo=1e-3, hi=100.0, help="total secondary burden: leads and relay"
     )
     differential_ct: Ratio | None = spec("ratio", "A", help="CTs of the differential zone, e.g. '1000/5 A'")
-    differential_ct_class: str | None = spec("text", help="IEEE C57.13 class of the differential CTs, e.g. 'C400'")
+    differential_ct_class: str | None = spec(
+        "ct_class", help="IEEE C57.13 class of the differential CTs, e.g. 'C400' (or IEC '5P20')"
+    )
     differential_ct_burden: float | None = spec(
         "impedance", "ohm", lo=1e-3, hi=100.0, help="total secondary burden of the differential CTs"
     )

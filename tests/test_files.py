@@ -59,6 +59,9 @@ def test_every_example_reads_and_validates():
     ("instruments.vt", "4200/120 A", "instruments.vt", r"ratio in V"),
     ("machine.starts_cold", 2.5, "machine.starts_cold", r"expected a whole number"),
     ("machine.locked_rotor_code", "I", "machine.locked_rotor_code", r"NEMA MG 1 code letter"),
+    ("instruments.phase_ct_class", "50/5", "instruments.phase_ct_class", r"IEEE C57.13 relaying class"),
+    # IEEE C57.13: C-class voltages are 10, 20, 50, 100, 200, 400 and 800 V only
+    ("instruments.phase_ct_class", "C250", "instruments.phase_ct_class", r"IEEE C57.13 relaying class"),
     ("sheet.tag", 101, "sheet.tag", r"expected text"),
     ("machine.efficiency", "nan", "machine.efficiency", r"not a finite number"),
     ("load.inertia", "-3 kg*m^2", "load.inertia", r"negative value is impossible"),
@@ -182,3 +185,18 @@ def test_written_files_have_ordinary_permissions(tmp_path):
     target.chmod(0o640)
     write_machine_file(target, motor_data())
     assert target.stat().st_mode & 0o777 == 0o640  # an existing file keeps its mode
+
+
+def test_ct_classes_of_both_families_are_read_and_normalised():
+    # IEEE C57.13 relaying classes and IEC 61869-2 protective classes (accuracy class P, accuracy limit factor)
+    assert case_from_dict(edited("instruments.phase_ct_class", "c 400"))[0].instruments.phase_ct_class == "C400"
+    iec = case_from_dict(edited("instruments.phase_ct_class", "5p20 15 VA"))[0]
+    assert iec.instruments.phase_ct_class == "5P20 15 VA"
+
+
+def test_an_iec_ct_class_gives_a_warning_not_an_error():
+    from machines.study import run_study
+
+    case, warnings = case_from_dict(edited("instruments.phase_ct_class", "5P20"))
+    record = run_study(case, warnings)
+    assert any("IEC 61869-2" in c.message and c.status == "warn" for _, c in record.all_checks())

@@ -13,8 +13,8 @@ import math
 from machines.protection.base import StudyContext
 from machines.protection.motor_basis import basis_of, chosen
 from machines.record import Check, Setting
-from machines.standards.ct_saturation import SATURATION_LIMIT, c37110_saturation_index, c_class_voltage, \
-    time_to_saturate
+from machines.standards.ct_saturation import (SATURATION_LIMIT, c37110_saturation_index, c_class_voltage,
+                                              is_iec_protective_class, time_to_saturate)
 
 RATIO_LOW = 0.5  #: FLC / CT primary below this: poor resolution of the overload region [P]
 RATIO_HIGH = 1.0  #: above this the CT runs beyond its rating at full load [P]
@@ -39,6 +39,11 @@ def settings(ctx: StudyContext) -> None:
     if not ins.phase_ct_class or not ins.phase_ct_burden:
         checks.append(Check("warn", "The phase CT class or burden is missing (instruments.phase_ct_class, "
                                     "phase_ct_burden): the IEEE C37.110 saturation check was not made."))
+        return None
+    if is_iec_protective_class(ins.phase_ct_class):
+        checks.append(Check("warn", f"Phase CT class {ins.phase_ct_class} is an IEC 61869-2 class: the IEEE C37.110 "
+                                    "check needs a C57.13 voltage rating; compare the CT's knee-point voltage with "
+                                    "(1 + X/R)·I_f·(R_ct + R_b) using the maker's data."))
         return None
     vc = c_class_voltage(ins.phase_ct_class)
     if b.fault_max is None:

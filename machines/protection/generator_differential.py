@@ -10,7 +10,8 @@ from __future__ import annotations
 
 from machines.protection.base import StudyContext, current_setting, timed_test_point
 from machines.record import Check, FunctionSettings, Setting
-from machines.standards.ct_saturation import SATURATION_LIMIT, c37110_saturation_index, c_class_voltage
+from machines.standards.ct_saturation import (SATURATION_LIMIT, c37110_saturation_index, c_class_voltage,
+                                              is_iec_protective_class)
 from machines.standards.generator_capability import differential_operate_threshold
 
 FID = "87G"
@@ -32,6 +33,11 @@ def _ct_check(ctx: StudyContext, checks: list[Check], ct) -> None:
         missing = "differential_ct_class" if cls is None else "differential_ct_burden"
         checks.append(Check("warn", f"instruments.{missing} is missing: the C37.110 check needs both class and "
                                     f"burden."))
+        return
+    if is_iec_protective_class(cls):
+        checks.append(Check("warn", f"Differential CT class {cls} is an IEC 61869-2 class: the IEEE C37.110 check "
+                                    "needs a C57.13 voltage rating; compare the CT's knee-point voltage with "
+                                    "(1 + X/R)·I_f·(R_ct + R_b) using the maker's data."))
         return
     vc = c_class_voltage(cls, "instruments.differential_ct_class")
     i_f = EXTERNAL_FAULT_EMF * basis.subtransient_fault_current

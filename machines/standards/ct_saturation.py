@@ -21,6 +21,28 @@ SATURATION_LIMIT = 20.0  #: the right-hand side of the C37.110 criterion [-]
 RATED_SECONDARY_FOR_CLASS = 5.0  #: C57.13 classes are defined for 5 A secondaries [A]
 
 
+_IEC_CLASS = re.compile(r"\s*(5|10)\s?P\s?(\d{1,2})(\s+\d{1,3}(\.\d{1,2})?\s*VA)?\s*", re.IGNORECASE)
+
+
+def is_iec_protective_class(text: str) -> bool:
+    """Whether ``text`` is an IEC 61869-2 protective class such as ``"5P20"`` or ``"10P10 15 VA"``.
+
+    Such a class gives an accuracy limit factor, not a C57.13 terminal voltage, so the C37.110 criterion in the
+    form of :func:`c37110_saturation_index` does not apply to it directly.
+
+    >>> is_iec_protective_class("5P20 15 VA"), is_iec_protective_class("C200")
+    (True, False)
+    """
+    return isinstance(text, str) and _IEC_CLASS.fullmatch(text) is not None
+
+
+def check_relaying_class(text: str, key: str) -> str:
+    """The class as written, normalised (``"c 200"`` → ``"C200"``), or InputError naming ``key``."""
+    if is_iec_protective_class(text):
+        return " ".join(text.upper().replace("VA", " VA").split()).replace(" P", "P").replace("P ", "P")
+    return f"{text.strip()[0].upper()}{int(c_class_voltage(text, key))}"
+
+
 def c_class_voltage(text: str, key: str = "instruments.phase_ct_class") -> float:
     """The secondary terminal voltage rating of an IEEE C57.13 relaying class such as ``"C200"`` [V].
 
@@ -46,7 +68,8 @@ def c_class_voltage(text: str, key: str = "instruments.phase_ct_class") -> float
     m = re.fullmatch(r"\s*([CKTckt])\s?(\d{2,4})\s*", text) if isinstance(text, str) else None
     if not m or float(m.group(2)) not in (10.0, 20.0, 50.0, 100.0, 200.0, 400.0, 800.0):
         raise InputError(key, f"expected an IEEE C57.13 relaying class such as 'C200' (C, K or T and 10, 20, 50, "
-                              f"100, 200, 400 or 800 V), got {one_line(text)}")
+                              f"100, 200, 400 or 800 V) or an IEC 61869-2 class such as '5P20', got "
+                              f"{one_line(text)}")
     return float(m.group(2))
 
 
