@@ -199,7 +199,7 @@ def case_from_dict(data: Any) -> tuple[MachineCase, list[str]]:
     if not isinstance(mtable, dict):
         raise InputError("machine", f"expected a table ([machine]), got {one_line(mtable)}")
     kind = mtable.get("kind")
-    if kind not in MACHINE_KINDS:
+    if not isinstance(kind, str) or kind not in MACHINE_KINDS:
         raise InputError("machine.kind", f"expected one of {', '.join(MACHINE_KINDS)}, got "
                                          f"{one_line(kind) if kind is not None else 'nothing'}"
                                          f"{_suggest(str(kind), MACHINE_KINDS) if isinstance(kind, str) else ''}")

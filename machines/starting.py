@@ -175,6 +175,8 @@ def motor_current(speed, locked_rotor_current: float, rated_slip: float, power_f
     c = (1.0 - i0 * i0) / (locked_rotor_current ** 2 - i0 * i0)
     a2 = (1.0 - c) / (c / rated_slip ** 2 - 1.0)
     f = (1.0 + a2) / (a2 / (s * s) + 1.0)
+    # the fit needs c < s_r² < 1 (true of real motors); outside it keep the current between no-load and locked rotor
+    f = np.clip(np.nan_to_num(f, nan=1.0, posinf=1.0, neginf=0.0), 0.0, 1.0)
     return np.sqrt(i0 * i0 + (locked_rotor_current ** 2 - i0 * i0) * f)
 
 
