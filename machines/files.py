@@ -300,9 +300,12 @@ def dumps(data: dict) -> str:
 def write_atomic(path: str | Path, text: str | bytes) -> None:
     """Write ``text`` to ``path`` through a temporary file in the same folder and a rename."""
     p = Path(path)
-    p.parent.mkdir(parents=True, exist_ok=True)
     data = text.encode("utf-8") if isinstance(text, str) else text
-    fd, tmp = tempfile.mkstemp(prefix=f".{p.name}.", suffix=".tmp", dir=p.parent)
+    try:
+        p.parent.mkdir(parents=True, exist_ok=True)
+        fd, tmp = tempfile.mkstemp(prefix=f".{p.name}.", suffix=".tmp", dir=p.parent)
+    except OSError as e:
+        raise InputError(str(p), f"cannot write here ({e.strerror or e}); nothing was written") from None
     try:
         with os.fdopen(fd, "wb") as fh:
             fh.write(data)

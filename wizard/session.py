@@ -152,7 +152,10 @@ def first_issue(data: dict) -> dict:
 
 def _new_from_answers(path: Path, output: Path | None) -> int:
     a = Answers(data=parse_toml(read_text(path), str(path)))
-    warnings = flow.scripted(a)
+    try:
+        warnings = flow.scripted(a)
+    except InputError as e:
+        raise e.at(path) from None
     data = first_issue(flow.machine_data(a))
     _, more = case_from_dict(data)
     out = output or Path(f"{_safe_name(data['sheet']['tag'])}.toml")
@@ -337,7 +340,10 @@ def run_revise(file: Path, answers: Path | None = None) -> int:
     path = Path(file)
     text = read_text(path)
     data = parse_toml(text, str(path))
-    old_case, old_warnings = case_from_dict(data)
+    try:
+        old_case, old_warnings = case_from_dict(data)
+    except InputError as e:
+        raise e.at(path) from None
     a = Answers(data=copy.deepcopy(data))
     a.data["sheet"]["date"] = flow.today()
     if answers is not None:
