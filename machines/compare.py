@@ -196,6 +196,9 @@ def _setting_dict_changes(prefix: str, old: dict[str, Setting], new: dict[str, S
         ja.pop("label", None), jb.pop("label", None), ja.pop("note", None), jb.pop("note", None)
         if ja == jb:
             continue
+        if _is_table(a.value) or _is_table(b.value):  # a derived table: say that it changed, not every cell
+            changes.append(Change(prefix + name, _rows(a.value), _rows(b.value) + ", values changed"))
+            continue
         secondary = ja.get("secondary") != jb.get("secondary")  # the value keyed into the relay changed
         source = ja["source"] != jb["source"]
         was, now = _show_setting(a, secondary, source), _show_setting(b, secondary, source)
@@ -203,6 +206,14 @@ def _setting_dict_changes(prefix: str, old: dict[str, Setting], new: dict[str, S
             was, now = _show_setting(a, secondary, source, 6), _show_setting(b, secondary, source, 6)
         changes.append(Change(prefix + name, was, now))
     return changes
+
+
+def _is_table(value: Any) -> bool:
+    return isinstance(value, (list, tuple)) and len(value) > 4
+
+
+def _rows(value: Any) -> str:
+    return f"table of {len(value)} rows" if isinstance(value, (list, tuple)) else show_value(value)
 
 
 def _show_setting(s: Setting, secondary: bool = False, source: bool = False, digits: int = 4) -> str:
