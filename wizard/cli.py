@@ -40,6 +40,7 @@ def caution(err: bool = False) -> None:
 def _version(value: bool) -> None:
     if value:
         typer.echo(f"relaywright {__version__}")
+        caution(err=True)  # stdout stays the bare version for scripts
         raise typer.Exit(EXIT_OK)
 
 
