@@ -400,7 +400,139 @@ def render(d, width: float, height: float):
                 drawing.add(m)
             drawing.add(String(xpos + 27, y, plain(label), fontName=SANS, fontSize=FONT_SIZE))
         y -= 12.0
-    return drawing
+    return lean(drawing)
+
+
+# ---------------------------------------------------------------------------------------------------- lean tree
+
+
+_IDENTITY = (1, 0, 0, 1, 0, 0)
+
+
+def lean(drawing):
+    """The same picture with fewer PDF operators: widgets expanded, plain groups dissolved, lines merged.
+
+    reportlab writes every node with its own save/restore, transform and pen: a LinePlot is a tree of groups with
+    identity or translate-only transforms (each tick label in its own group), and every grid line is a node. Here a
+    group that sets nothing but a translation is dissolved (its shapes moved by the translation), and consecutive
+    solid lines drawn with the same pen become one path of separate strokes. Draw order, pens and coordinates stay
+    as they were, so the page looks the same; a group with any other state or transform is kept as it is.
+    """
+    from reportlab.graphics.shapes import Drawing
+
+    contents = _lean_nodes(drawing.contents, 0.0, 0.0)
+    out = Drawing(drawing.width, drawing.height, *contents, initialFontName=drawing.initialFontName,
+                  initialFontSize=drawing.initialFontSize)
+    out.transform = drawing.transform
+    return out
+
+
+def _expanded(node):
+    while hasattr(node, "provideNode"):
+        node = node.provideNode()
+    return node
+
+
+def _lean_nodes(nodes, dx: float, dy: float) -> list:
+    from reportlab.graphics.shapes import Group, Line
+
+    flat: list = []
+    for node in nodes:
+        node = _expanded(node)
+        if node is None:
+            continue
+        if isinstance(node, Group):
+            t = tuple(node.transform)
+            if _group_state_free(node) and t[:4] == _IDENTITY[:4]:
+                flat += _lean_nodes(node.contents, dx + t[4], dy + t[5])
+                continue
+            if dx or dy:  # a kept group moves as a whole
+                if t[:4] != _IDENTITY[:4]:
+                    flat.append(_wrapped(node, dx, dy))
+                    continue
+                node.transform = (1, 0, 0, 1, t[4] + dx, t[5] + dy)
+            node.contents = _lean_nodes(node.contents, 0.0, 0.0)
+            flat.append(node)
+            continue
+        if (dx or dy) and not _moved(node, dx, dy):
+            flat.append(_wrapped(node, dx, dy))
+            continue
+        flat.append(node)
+    return _merge_lines(flat, Line)
+
+
+def _wrapped(node, dx: float, dy: float):
+    from reportlab.graphics.shapes import Group
+
+    g = Group(node)
+    g.transform = (1, 0, 0, 1, dx, dy)
+    return g
+
+
+def _group_state_free(group) -> bool:
+    from reportlab.graphics.renderbase import getStateDelta
+
+    return all(key == "transform" for key in getStateDelta(group))
+
+
+def _moved(node, dx: float, dy: float) -> bool:
+    """Shift a shape by (dx, dy) in place; False for a kind of shape this does not know how to move."""
+    from reportlab.graphics.shapes import Circle, Line, PolyLine, Polygon, Rect, String
+
+    if isinstance(node, Line):
+        node.x1 += dx
+        node.x2 += dx
+        node.y1 += dy
+        node.y2 += dy
+    elif isinstance(node, (String, Rect)):
+        node.x += dx
+        node.y += dy
+    elif isinstance(node, Circle):
+        node.cx += dx
+        node.cy += dy
+    elif isinstance(node, (PolyLine, Polygon)):
+        pts = list(node.points)
+        node.points = [v + (dx if i % 2 == 0 else dy) for i, v in enumerate(pts)]
+    else:
+        return False
+    return True
+
+
+def _merge_lines(nodes: list, line_class) -> list:
+    """Runs of solid lines with the same pen as one path (each line its own stroke)."""
+    from reportlab.graphics.renderbase import getStateDelta
+    from reportlab.graphics.shapes import Path
+
+    out: list = []
+    run: list = []
+    pen = None
+
+    def flush():
+        if len(run) == 1:
+            out.append(run[0])
+        elif run:
+            path = Path(fillColor=None, **{k: v for k, v in pen.items() if k != "fillColor"})
+            for ln in run:
+                path.moveTo(ln.x1, ln.y1)
+                path.lineTo(ln.x2, ln.y2)
+            out.append(path)
+        run.clear()
+
+    for node in nodes:
+        if type(node) is line_class:
+            delta = getStateDelta(node)
+            if not delta.get("strokeDashArray"):
+                if run and delta == pen:
+                    run.append(node)
+                    continue
+                flush()
+                run.append(node)
+                pen = delta
+                continue
+        flush()
+        out.append(node)
+    flush()
+    return out
 
 
 def _usable_range(r, log: bool) -> bool:
