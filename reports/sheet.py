@@ -123,6 +123,59 @@ def _paragraph_class():
     return SheetParagraph
 
 
+@lru_cache(maxsize=1)
+def _table_class():
+    from reportlab.platypus import Table
+
+    class SheetTable(Table):
+        """A Table that writes its one-line, left-aligned text cells in one text object.
+
+        reportlab draws each text cell as its own text object (with its own font, colour and width computation);
+        here the cells' strings are collected while the table draws and written together, each at the same origin,
+        in the same font and colour, just before the table's lines. Cells do not overlap, so the page looks the same.
+        Any other cell (a Paragraph, text with a line break, other alignment, a link) is drawn by reportlab.
+        """
+
+        def _drawCell(self, cellval, cellstyle, pos, size):
+            if type(cellval) is not str or cellstyle.alignment != "LEFT" or "\n" in cellval or \
+                    cellstyle.direction or cellstyle.shaping or cellstyle.href or cellstyle.destination or \
+                    cellstyle.valign not in ("TOP", "BOTTOM", "MIDDLE"):
+                return super()._drawCell(cellval, cellstyle, pos, size)
+            if not cellval:
+                return None  # an empty cell draws nothing
+            colpos, rowpos = pos
+            rowheight = size[1]
+            leading, fontsize = cellstyle.leading, cellstyle.fontsize
+            if cellstyle.valign == "TOP":
+                y = rowpos + rowheight - cellstyle.topPadding - fontsize
+            elif cellstyle.valign == "BOTTOM":
+                y = rowpos + cellstyle.bottomPadding + leading - fontsize
+            else:
+                y = rowpos + (cellstyle.bottomPadding + rowheight - cellstyle.topPadding + leading) / 2.0 - fontsize
+            pending = self.__dict__.setdefault("_sheet_text", [])
+            pending.append((colpos + cellstyle.leftPadding, y, cellval, cellstyle))
+            return None
+
+        def _drawLines(self):
+            pending = self.__dict__.pop("_sheet_text", None)
+            if pending:
+                t = self.canv.beginText()
+                font = color = None
+                for x, y, text, cs in pending:
+                    if font != (cs.fontname, cs.fontsize, cs.leading):
+                        font = (cs.fontname, cs.fontsize, cs.leading)
+                        t.setFont(*font)
+                    if color is None or cs.color != color:
+                        color = cs.color
+                        t.setFillColor(color)
+                    t.setTextOrigin(x, y)
+                    t._textOut(text)
+                self.canv.drawText(t)
+            return super()._drawLines()
+
+    return SheetTable
+
+
 def _heading(text: str, st: _Styles) -> list:
     from reportlab.platypus import CondPageBreak, HRFlowable, Paragraph
 
@@ -151,7 +204,7 @@ def _table(rows, widths, style_cmds, repeat: int = 0):
     reportlab wraps several times per table; text that needs wrapping or the fallback font stays a Paragraph.
     """
     from reportlab.pdfbase.pdfmetrics import stringWidth
-    from reportlab.platypus import Table, TableStyle
+    from reportlab.platypus import TableStyle
 
     cmds: list = []
     out_rows = []
@@ -179,7 +232,7 @@ def _table(rows, widths, style_cmds, repeat: int = 0):
             cmds += [("FONTNAME", (c0, r), (c1, r), st.fontName), ("FONTSIZE", (c0, r), (c1, r), st.fontSize),
                      ("LEADING", (c0, r), (c1, r), st.leading), ("TEXTCOLOR", (c0, r), (c1, r), st.textColor)]
         out_rows.append(out_row)
-    t = Table(out_rows, colWidths=widths, repeatRows=repeat, hAlign="LEFT")
+    t = _table_class()(out_rows, colWidths=widths, repeatRows=repeat, hAlign="LEFT")
     base = [("FONTNAME", (0, 0), (-1, -1), SANS), ("VALIGN", (0, 0), (-1, -1), "TOP"),
             ("LEFTPADDING", (0, 0), (-1, -1), _PAD),
             ("RIGHTPADDING", (0, 0), (-1, -1), _PAD), ("TOPPADDING", (0, 0), (-1, -1), 2),
