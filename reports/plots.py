@@ -259,7 +259,25 @@ def _extent(d, log_x: bool, log_y: bool):
 
 
 def render(d, width: float, height: float):
-    """A reportlab graphics ``Drawing`` of ``width`` × at most ``height`` points for the record drawing ``d``."""
+    """A reportlab graphics ``Drawing`` of ``width`` × at most ``height`` points for the record drawing ``d``.
+
+    reportlab's check of every shape attribute as it is set is switched off while the drawing is built (the values
+    come from this module, not from the user; the tests build every kind of drawing with the check on, see
+    :data:`CHECK_SHAPES`): the same shapes, a good part of the build time saved.
+    """
+    from reportlab import rl_config
+
+    checking, rl_config.shapeChecking = rl_config.shapeChecking, int(CHECK_SHAPES)
+    try:
+        return _render(d, width, height)
+    finally:
+        rl_config.shapeChecking = checking
+
+
+CHECK_SHAPES = False  #: True: let reportlab validate each shape attribute while a drawing is built (for tests)
+
+
+def _render(d, width: float, height: float):
     from reportlab.graphics.charts.axes import LogXValueAxis, LogYValueAxis, XValueAxis, YValueAxis
     from reportlab.graphics.charts.lineplots import LinePlot
     from reportlab.graphics.shapes import Drawing, Group, Line, String
