@@ -66,14 +66,18 @@ def _charset(name: str) -> frozenset[int]:
     return frozenset(font.face.charToGlyph)
 
 
+@lru_cache(maxsize=1)
+def _main_or_break() -> frozenset[int]:
+    return _charset(SANS) | {ord("\n"), ord("\t")}
+
+
 def _in_main(ch: str) -> bool:
-    return ord(ch) in _charset(SANS) or ch in "\n\t"
+    return ord(ch) in _main_or_break()
 
 
 def in_main_font(text: str) -> bool:
     """True when every character of ``text`` is in the sheet font (no fallback needed)."""
-    chars = _charset(SANS)
-    return all(ord(ch) in chars for ch in text)
+    return _charset(SANS).issuperset(map(ord, text))
 
 
 def missing_glyphs(text: str) -> list[str]:
@@ -103,7 +107,7 @@ def markup(text: object, bold: bool = False) -> str:
     'line one<br/>line two'
     """
     s = plain(text)
-    if all(_in_main(ch) for ch in s):
+    if _main_or_break().issuperset(map(ord, s)):
         return escape(s).replace("\n", "<br/>")
     has_fallback = register()
     parts: list[str] = []
