@@ -204,10 +204,13 @@ def _table(rows, widths, style_cmds, repeat: int = 0):
     reportlab wraps several times per table; text that needs wrapping or the fallback font stays a Paragraph.
     """
     from reportlab.pdfbase.pdfmetrics import stringWidth
+    from reportlab.lib.colors import black
     from reportlab.platypus import TableStyle
 
     cmds: list = []
     out_rows = []
+    blocks: dict[tuple, list] = {}  # open blocks of plain-string cells: [first row, last row, c0, c1, style]
+    done: list[list] = []
     for r, row in enumerate(rows):
         out_row = []
         runs: list[list] = []  # [first column, last column, style] of plain-string cells in one style
@@ -228,10 +231,23 @@ def _table(rows, widths, style_cmds, repeat: int = 0):
                     out_row.append(_p(text, st))
             else:
                 out_row.append(cell)
-        for c0, c1, st in runs:  # one set of style commands per run of cells, not per cell
-            cmds += [("FONTNAME", (c0, r), (c1, r), st.fontName), ("FONTSIZE", (c0, r), (c1, r), st.fontSize),
-                     ("LEADING", (c0, r), (c1, r), st.leading), ("TEXTCOLOR", (c0, r), (c1, r), st.textColor)]
+        for c0, c1, st in runs:  # a run continuing the same columns and style from the row above extends its block
+            key = (c0, c1, id(st))
+            block = blocks.get(key)
+            if block and block[1] == r - 1:
+                block[1] = r
+            else:
+                if block:
+                    done.append(block)
+                blocks[key] = [r, r, c0, c1, st]
         out_rows.append(out_row)
+    for r0, r1, c0, c1, st in sorted(done + list(blocks.values()), key=lambda b: (b[0], b[2])):
+        a, b = (c0, r0), (c1, r1)  # one set of style commands per block of cells, not per cell
+        if st.fontName != SANS:
+            cmds.append(("FONTNAME", a, b, st.fontName))
+        cmds += [("FONTSIZE", a, b, st.fontSize), ("LEADING", a, b, st.leading)]
+        if st.textColor != black:
+            cmds.append(("TEXTCOLOR", a, b, st.textColor))
     t = _table_class()(out_rows, colWidths=widths, repeatRows=repeat, hAlign="LEFT")
     base = [("FONTNAME", (0, 0), (-1, -1), SANS), ("VALIGN", (0, 0), (-1, -1), "TOP"),
             ("LEFTPADDING", (0, 0), (-1, -1), _PAD),
