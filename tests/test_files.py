@@ -2,9 +2,7 @@
 
 from __future__ import annotations
 
-import copy
 import tomllib
-from pathlib import Path
 
 import pytest
 

@@ -25,7 +25,7 @@ RANGE_FAIL = 0.001  #: below 0.1 %: beyond what the measuring chain resolves (co
 
 def settings(ctx: StudyContext) -> FunctionSettings:
     """32: pickup from the motoring power, delays with and without valve supervision, measuring-range check."""
-    basis, m, inst = ctx.extras["generator"], ctx.case.machine, ctx.case.instruments
+    basis, m = ctx.extras["generator"], ctx.case.machine
     lowest, typical = motoring_power_fraction(m.prime_mover)
     checks: list[Check] = []
     if m.motoring_power is not None:

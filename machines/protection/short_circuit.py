@@ -41,7 +41,7 @@ def settings(ctx: StudyContext) -> FunctionSettings:
     case = ctx.case
     sup = case.supply
     b = basis_of(ctx)
-    ct, flc = ctx.ct, b.flc
+    ct = ctx.ct
     checks: list[Check] = []
     fused = sup.starter == "fused-contactor"
     enabled, e_src = ctx.choose(FID, "enabled", not fused, "boolean", "", "common-practice")
