@@ -317,7 +317,10 @@ def test_stages_from_maker_bands_below_and_after_load_shedding():
     # the prohibited band below 57.5 Hz gets the shortest delay that still follows the shedding (0.3 s + margin)
     assert stages[-1] == pytest.approx({"frequency": 57.5, "time_delay": 0.3 + frequency.LS_TIME_MARGIN})
     over = record.function("81O").settings["stages"].value
-    assert len(over) == 1 and over[0] == pytest.approx({"frequency": 60.5, "time_delay": 180.0})
+    assert over[0] == pytest.approx({"frequency": 60.5, "time_delay": 180.0})
+    # above 61.5 Hz no band allows operation (IEEE C37.106 prohibited region): the minimum delay there
+    # common practice, no published source (the 0.5 s minimum delay)
+    assert over[1:] == [pytest.approx({"frequency": 61.5, "time_delay": frequency.MINIMUM_DELAY})]
 
 
 def test_stage_above_load_shedding_fails():

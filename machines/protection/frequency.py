@@ -33,7 +33,8 @@ EDGE = 1e-6  #: [Hz] a stage at a band edge times in the band beyond it
 
 def _band_stages(bands, f0: float, under: bool) -> list[dict]:
     """One stage per restricted band beyond nominal: frequency at the band's inner edge, delay a fraction of its
-    allowance (prohibited bands: the minimum delay)."""
+    allowance; and a stage with the minimum delay at the outer edge of the outermost band, beyond which the maker
+    allows no operation (IEEE C37.106: the prohibited region)."""
     side = [b for b in bands if (b.high <= f0 + 1e-9 if under else b.low >= f0 - 1e-9)]
     side.sort(key=lambda b: -b.high if under else b.low)
     stages = []
@@ -42,6 +43,9 @@ def _band_stages(bands, f0: float, under: bool) -> list[dict]:
         if b.allowed >= CONTINUOUS:
             continue
         stages.append({"frequency": f, "time_delay": max(EVENT_FRACTION * b.allowed, MINIMUM_DELAY)})
+    if side and side[-1].allowed > 0:  # beyond the outermost band the maker allows no operation: a fast stage
+        outer = side[-1]                 # at its outer edge (a band given with 0 s already has its stage)
+        stages.append({"frequency": outer.low if under else outer.high, "time_delay": MINIMUM_DELAY})
     return stages
 
 
@@ -91,7 +95,8 @@ def _function(ctx: StudyContext, under: bool) -> FunctionSettings:
     if stages:
         source = "maker-data"
         how = (f"one stage at the inner edge of each of the maker's restricted bands, delay {EVENT_FRACTION:.0%} of "
-               f"the band's accumulated allowance (at least {MINIMUM_DELAY:g} s)")
+               f"the band's accumulated allowance (at least {MINIMUM_DELAY:g} s), and a {MINIMUM_DELAY:g} s stage at "
+               "the outer edge of the outermost band, beyond which the maker allows no operation")
     else:
         source = "common-practice"
         table = CONSERVATIVE_UNDER if under else CONSERVATIVE_OVER
