@@ -162,7 +162,7 @@ def _function(ctx: StudyContext, under: bool) -> FunctionSettings:
     if bands:
         checks.append(Check("ok", "Enable the relay's band accumulators (one per maker band) with an alarm at "
                                   "50–80 % of each allowance; the accumulated life use, not the stages, protects "
-                                  "the blades from repeated excursions."))
+                                  "the turbine from repeated excursions."))
     tests = []
     for i, st in enumerate(stages, start=1):
         f, t = st["frequency"], st["time_delay"]
