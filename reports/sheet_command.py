@@ -86,6 +86,9 @@ def make_sheet(file: Path, output: Path | None = None, page_size: str | None = N
     target = default_output(Path(file), record.tag, record.revision) if output is None else Path(output)
     if target.is_dir():
         target = target / default_output(Path(file), record.tag, record.revision).name
+    from reports.signing import refuse_to_replace_signed
+
+    refuse_to_replace_signed(target, pdf)
     write_atomic(target, pdf)
     print(target)
     failed = sum(1 for _, c in record.all_checks() if c.status == "fail")

@@ -51,6 +51,18 @@ def _is_pdf(data: bytes) -> bool:
     return b"%PDF-" in data[:1024]
 
 
+def refuse_to_replace_signed(target: Path, new_pdf: bytes) -> None:
+    """InputError when ``target`` is a signed PDF other than ``new_pdf``: a signed sheet is never overwritten."""
+    try:
+        with open(target, "rb") as fh:
+            old = fh.read()
+    except OSError:
+        return
+    if old != new_pdf and _is_pdf(old) and b"/ByteRange" in old:
+        raise InputError(str(target), "holds a signed sheet, which is never replaced; write the new sheet under "
+                                      "another name (-o) or raise sheet.revision; nothing was written")
+
+
 def sheet_keywords(data: bytes) -> tuple[str, str, str]:
     """(inputs fingerprint, revision, tag) from a sheet's /Keywords, or empty strings when it has none."""
     from pyhanko.pdf_utils.reader import PdfFileReader

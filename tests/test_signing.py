@@ -264,3 +264,16 @@ def test_building_a_sheet_does_not_import_pyhanko():
     root = Path(__file__).resolve().parent.parent
     out = subprocess.run([sys.executable, "-c", code], cwd=root, capture_output=True, text=True, check=True)
     assert out.stdout.strip() == "False"
+
+
+def test_a_signed_sheet_is_never_overwritten(tmp_path, key, monkeypatch):
+    from reports.sheet_command import make_sheet
+
+    machine = EXAMPLE
+    target = tmp_path / "sheet.pdf"
+    monkeypatch.setenv("RELAYWRIGHT_SIGN_PASSWORD", PASSWORD)
+    assert make_sheet(machine, output=target, sign=key) in (0, 1)
+    signed_bytes = target.read_bytes()
+    with pytest.raises(InputError, match=r"holds a signed sheet, which is never replaced"):
+        make_sheet(machine, output=target)
+    assert target.read_bytes() == signed_bytes

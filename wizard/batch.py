@@ -268,11 +268,13 @@ def _process(task: Task) -> Outcome:
 
     from machines.study import run_study
     from reports.sheet import build_sheet
+    from reports.signing import refuse_to_replace_signed
 
     record = run_study(case, warnings)
     data = record.to_json()
     text = dumps_json(data, indent=None) + "\n"  # compact: other programs read it (``settings --json`` is pretty)
     sheet = build_sheet(record)
+    refuse_to_replace_signed(pdf, sheet)  # a signed sheet in OUT is never overwritten
     write_atomic(pdf, sheet)
     write_atomic(record_path, text)  # last: a record in OUT always stands beside its finished sheet
     return _outcome(task, data, current=False)
