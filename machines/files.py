@@ -16,6 +16,7 @@ import os
 import re
 import tempfile
 import tomllib
+import unicodedata
 from dataclasses import fields
 from pathlib import Path
 from typing import Any
@@ -278,6 +279,26 @@ def load_case(path: str | Path) -> tuple[MachineCase, list[str]]:
 
 
 # ---------------------------------------------------------------------------------------------------- writing
+
+
+def safe_file_stem(text: str, fallback: str = "machine") -> str:
+    """A file name made from a tag: letters, digits, ``-``, ``_`` and ``.`` only, no leading dot, no ``..``.
+
+    >>> safe_file_stem("CW-P-201"), safe_file_stem("../../etc/passwd"), safe_file_stem("M-101 <spare>/2")
+    ('CW-P-201', 'etc_passwd', 'M-101_spare_2')
+    >>> safe_file_stem("Насос-3"), safe_file_stem("..."), safe_file_stem("CON")
+    ('Насос-3', 'machine', 'CON_')
+    """
+    s = unicodedata.normalize("NFKC", str(text))
+    s = "".join(ch if ch.isalnum() or ch in "-_." else "_" for ch in s)
+    s = re.sub(r"\.{2,}", "_", s)
+    s = re.sub(r"_{2,}", "_", s).strip("._-")[:80].rstrip("._-")
+    if not s:
+        return fallback
+    if s.split(".")[0].upper() in {"CON", "PRN", "AUX", "NUL", *(f"COM{i}" for i in range(10)),
+                                   *(f"LPT{i}" for i in range(10))}:
+        s += "_"
+    return s
 
 
 def file_revision(path: str | Path) -> int | None:

@@ -15,29 +15,11 @@ from pathlib import Path
 from machines.errors import InputError
 
 PASSWORD_ENV = "RELAYWRIGHT_SIGN_PASSWORD"
-_UNSAFE = set('/\\<>:"|?*')
-
-
-def safe_name(tag: str, limit: int = 80) -> str:
-    """A file-name stem made from a tag: no path separators, no '..', no control or reserved characters.
-
-    >>> safe_name("CW-P-201"), safe_name("../../etc/passwd"), safe_name("M-101 <spare> & co"), safe_name("..")
-    ('CW-P-201', '_._etc_passwd', 'M-101 _spare_ & co', 'sheet')
-    """
-    chars = ["_" if (c in _UNSAFE or not c.isprintable()) else c for c in str(tag)]
-    text = "".join(chars)
-    while ".." in text:
-        text = text.replace("..", ".")
-    text = text.strip(" .")
-    while "__" in text:
-        text = text.replace("__", "_")
-    text = text[:limit].strip(" .")
-    return text if text.strip("_") else "sheet"
-
-
 def default_output(machine_file: Path, tag: str, revision: int) -> Path:
-    """``<tag>-rev<N>.pdf`` beside the machine file."""
-    return Path(machine_file).parent / f"{safe_name(tag)}-rev{revision}.pdf"
+    """``<tag>-rev<N>.pdf`` beside the machine file (the tag made safe for a file name)."""
+    from machines.files import safe_file_stem
+
+    return Path(machine_file).parent / f"{safe_file_stem(tag, 'sheet')}-rev{revision}.pdf"
 
 
 def signing_password(key: Path) -> str:

@@ -21,7 +21,8 @@ import pytest
 
 from machines.errors import InputError
 from machines.files import dumps
-from wizard.batch import OUTCOMES, Outcome, output_names, run_batch, safe_name, summary_line
+from machines.files import safe_file_stem as safe_name
+from wizard.batch import OUTCOMES, Outcome, output_names, run_batch, summary_line
 
 pytest.importorskip("reports.sheet", reason="reports.sheet (build_sheet) is not in this checkout yet: the batch "
                                             "writes a sheet for every machine")

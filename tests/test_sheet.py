@@ -276,7 +276,7 @@ def test_make_sheet_writes_a_safe_name_beside_the_file(tmp_path, capsys):
     assert make_sheet(machine) in (0, 1)
     written = [p.name for p in tmp_path.glob("*.pdf")]
     assert len(written) == 1 and "/" not in written[0] and ".." not in written[0]
-    assert written[0].startswith("_up_M-1 _x_-rev")
+    assert written[0].startswith("up_M-1_x-rev")
     assert capsys.readouterr().out.strip() == str(tmp_path / written[0])
     out_dir = tmp_path / "out"
     out_dir.mkdir()

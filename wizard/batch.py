@@ -23,14 +23,12 @@ import os
 import re
 import signal
 import time
-import unicodedata
 from dataclasses import dataclass, field
 from pathlib import Path
 from typing import Any
 
 MACHINE_FORMAT_PREFIX = "relaywright.machine"
 INDEX_NAME = "index"  #: the index PDF is OUT/index.pdf; no machine file takes that name
-MAX_NAME = 80
 
 # outcome -> (summary word, exit code, order in the summary: problems last, next to the prompt)
 OUTCOMES = {
@@ -92,26 +90,6 @@ class Plan:
 # ---------------------------------------------------------------------------------------------------- names
 
 
-def safe_name(text: str) -> str:
-    """A file name made from a tag: letters, digits, ``-``, ``_`` and ``.`` only, no leading dot, no ``..``.
-
-    >>> safe_name("CW-P-201"), safe_name("../../etc/passwd"), safe_name("M-101 <spare>/2"), safe_name("Насос-3")
-    ('CW-P-201', 'etc_passwd', 'M-101_spare_2', 'Насос-3')
-    >>> safe_name("..."), safe_name("CON")
-    ('machine', 'CON_')
-    """
-    s = unicodedata.normalize("NFKC", str(text))
-    s = "".join(ch if ch.isalnum() or ch in "-_." else "_" for ch in s)
-    s = re.sub(r"\.{2,}", "_", s)
-    s = re.sub(r"_{2,}", "_", s).strip("._-")[:MAX_NAME].rstrip("._-")
-    if not s:
-        return "machine"
-    if s.split(".")[0].upper() in {"CON", "PRN", "AUX", "NUL", *(f"COM{i}" for i in range(10)),
-                                   *(f"LPT{i}" for i in range(10))}:
-        s += "_"
-    return s
-
-
 def output_names(items: list[tuple[str, str, Any]]) -> dict[str, str]:
     """Output names for ``(path, tag, revision)`` items: ``<tag>-rev<N>``, disambiguated by path on a clash.
 
@@ -122,10 +100,12 @@ def output_names(items: list[tuple[str, str, Any]]) -> dict[str, str]:
     >>> output_names([("a.toml", "M-1", 2), ("b/c.toml", "M-1", 2), ("d.toml", "M-1", 3)])
     {'a.toml': 'M-1-rev2--a', 'b/c.toml': 'M-1-rev2--b_c', 'd.toml': 'M-1-rev3'}
     """
+    from machines.files import safe_file_stem
+
     base = {}
     for path, tag, revision in items:
         rev = revision if isinstance(revision, int) and not isinstance(revision, bool) else 0
-        base[path] = safe_name(f"{tag}-rev{rev}") if tag else safe_name(Path(path).stem)
+        base[path] = safe_file_stem(f"{tag}-rev{rev}") if tag else safe_file_stem(Path(path).stem)
     counts: dict[str, int] = {}
     for name in base.values():
         counts[name.lower()] = counts.get(name.lower(), 0) + 1
@@ -133,7 +113,7 @@ def output_names(items: list[tuple[str, str, Any]]) -> dict[str, str]:
     names, taken = {}, set()
     for path, name in base.items():
         if counts[name.lower()] > 1:
-            name = safe_name(f"{name}--{Path(path).with_suffix('').as_posix()}")
+            name = safe_file_stem(f"{name}--{Path(path).with_suffix('').as_posix()}")
         candidate, i = name, 2
         while candidate.lower() in taken or candidate.lower() == INDEX_NAME:
             candidate, i = f"{name}-{i}", i + 1

@@ -17,7 +17,8 @@ import sys
 from pathlib import Path
 
 from machines.errors import InputError
-from machines.files import case_from_dict, file_revision, parse_toml, read_text, write_atomic, write_machine_file
+from machines.files import (case_from_dict, file_revision, parse_toml, read_text, safe_file_stem, write_atomic,
+                            write_machine_file)
 from reports.notices import CAUTION_LINE
 from wizard import flow
 from wizard.drafts import Draft, draft_path, free_draft_path, load_draft, timestamp_name
@@ -158,7 +159,7 @@ def _new_from_answers(path: Path, output: Path | None) -> int:
         raise e.at(path) from None
     data = first_issue(flow.machine_data(a))
     _, more = case_from_dict(data)
-    out = output or Path(f"{_safe_name(data['sheet']['tag'])}.toml")
+    out = output or Path(f"{safe_file_stem(data['sheet']['tag'])}.toml")
     if out.exists() and not _same_file(out, data):
         rev = file_revision(out)
         held = f" (revision {rev})" if rev is not None else ""
@@ -176,10 +177,6 @@ def _left_out(a: Answers) -> list[str]:
 def _warn(lines: list[str]) -> None:
     for w in dict.fromkeys(lines):
         print(f"warning: {w}", file=sys.stderr)
-
-
-def _safe_name(tag: str) -> str:
-    return "".join(c if c.isalnum() or c in "-_." else "-" for c in tag).strip(".") or "machine"
 
 
 def _same_file(path: Path, data: dict) -> bool:
@@ -200,7 +197,7 @@ def choose_output(draft: Draft, a: Answers, data: dict) -> Path:
         return out
     if out is not None:
         say(f"{out} already exists and holds another machine file; it is not replaced.")
-    suggestion = out or Path(f"{_safe_name(data['sheet']['tag'])}.toml")
+    suggestion = out or Path(f"{safe_file_stem(data['sheet']['tag'])}.toml")
     n = 2
     while suggestion.exists() and not _same_file(suggestion, data):
         suggestion = suggestion.with_name(f"{suggestion.stem.rsplit('-v', 1)[0]}-v{n}{suggestion.suffix}")
