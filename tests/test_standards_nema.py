@@ -16,10 +16,11 @@ from machines.standards.nema import (
     mg10_starts_per_hour, unbalance_derating_factor, voltage_unbalance_percent,
 )
 from machines.standards.overload_limits import nec_overload_limit
+from machines.standards.negative_sequence import negative_sequence_trip_time
 from machines.standards.unbalance import (
     adiabatic_negative_sequence_constant, derating_from_heating_weight, equivalent_heating_current,
     heating_weight_175_rule, heating_weight_from_rotor_resistance, negative_sequence_current_ratio,
-    negative_sequence_trip_time, sequence_components, voltage_unbalance_factor,
+    sequence_components, voltage_unbalance_factor,
 )
 
 

@@ -167,14 +167,3 @@ def adiabatic_negative_sequence_constant(locked_rotor_current: float, stall_time
     540.0
     """
     return locked_rotor_current ** 2 * stall_time_cold
-
-
-def negative_sequence_trip_time(negative_sequence: float, k2: float) -> float:
-    """Inverse negative-sequence operate time t = K2 / I2² [s] (I2 in pu of rated current).
-
-    Examples
-    --------
-    >>> negative_sequence_trip_time(0.3, 540.0), negative_sequence_trip_time(1.0, 540.0)   # REFERENCE 5.5
-    (6000.0, 540.0)
-    """
-    return math.inf if negative_sequence <= 0.0 else k2 / negative_sequence ** 2
