@@ -362,6 +362,12 @@ class SynchronousGenerator:
         "active_power", "kW", lo=1.0, hi=1e9, help="power to motor the unit at rated speed (else by prime mover)"
     )
     inertia_constant: float | None = spec("time", "s", lo=0.1, hi=30.0, help="H on the machine's rating")
+    heating_time_constant: float | None = spec(
+        "time", "min", lo=60.0, hi=36000.0, help="maker's stator heating time constant, if known"
+    )
+    cooling_time_constant: float | None = spec(
+        "time", "min", lo=60.0, hi=72000.0, help="maker's stator cooling time constant, if known"
+    )
     vhz_limit: float = spec(
         "per_unit",
         "pu",

@@ -428,3 +428,19 @@ def test_gas_turbine_with_bands_only_above_nominal():
     assert under.settings["stages"].source == "common-practice"
     assert "warn" in _statuses(under, "below nominal")
     assert over.settings["stages"].source == "maker-data"
+
+
+def test_stator_thermal_takes_the_makers_time_constants():
+    # maker's data win over the fitted constant (DESIGN: maker-data source); IEC 60255-149 replica, IEEE C50.13 check
+    fs = study(**{"machine.heating_time_constant": "4 min", "machine.cooling_time_constant": "30 min"}).function("49")
+    assert fs.settings["heating_time_constant"].value == pytest.approx(240.0)
+    assert fs.settings["heating_time_constant"].source == "maker-data"
+    assert fs.settings["cooling_time_constant"].value == pytest.approx(1800.0)
+    assert "maker's" in fs.basis
+
+
+def test_a_makers_time_constant_longer_than_the_capability_allows_is_a_warning():
+    # IEEE C50.13 armature capability (I² − 1)·t ≈ 41 s: a 60 min replica trips far later than 10 s at 2.26 pu
+    fs = study(**{"machine.heating_time_constant": "60 min"}).function("49")
+    statuses = {c.status for c in fs.checks}
+    assert "warn" in statuses and "fail" not in statuses
