@@ -16,7 +16,11 @@ from machines.errors import InputError
 
 PASSWORD_ENV = "RELAYWRIGHT_SIGN_PASSWORD"
 def default_output(machine_file: Path, tag: str, revision: int) -> Path:
-    """``<tag>-rev<N>.pdf`` beside the machine file (the tag made safe for a file name)."""
+    """``<tag>-rev<N>.pdf`` beside the machine file (the tag made safe for a file name).
+
+    >>> default_output(Path("plant/m.toml"), "../M-1 <x>", 2).as_posix()
+    'plant/M-1_x-rev2.pdf'
+    """
     from machines.files import safe_file_stem
 
     return Path(machine_file).parent / f"{safe_file_stem(tag, 'sheet')}-rev{revision}.pdf"
