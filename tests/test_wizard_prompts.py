@@ -44,7 +44,7 @@ NAMEPLATE_MOTOR = ["250 kW", "6.6 kV", "50", "1485", "0.86", "95.5 %", "", "", E
 REST_MOTOR = ["12 kg*m^2", ENTER, "", "", "",
               "", "250 MVA", "", "", "", ENTER, "n",
               DOWN + ENTER, "300 A", "",
-              "300/1 A", "", "", "", "",
+              "300/1 A", "", "", "", "", "",
               ENTER]
 MOTOR = IDENT_MOTOR + NAMEPLATE_MOTOR + REST_MOTOR
 WRITE = [ENTER]
@@ -53,8 +53,8 @@ GENERATOR = [DOWN + ENTER, "GT-G-1", "Gas turbine generator 1", "", "L. Brandt",
              "12.5 MVA", "11 kV", "50 Hz", "1500", "0.8", "n", "1.9", "0.22", "0.14", "",
              DOWN + ENTER, ENTER, "",
              "", "500 MVA", "", "", "", "n", "",
-             DOWN * 4 + ENTER, "8 A", "11000/240 V", "", "", "0.3 uF",
-             "800/1 A", "", "", "", "11000/110 V", "",
+             DOWN * 4 + ENTER, "8 A", "11000/240 V", "", "0.3 uF",
+             "800/1 A", "", "", "", "11000/110 V", "", "",
              ENTER]
 
 
@@ -86,7 +86,7 @@ def test_full_generator_session_writes_a_valid_machine_file(tmp_path):
     # round rotor offered for a gas turbine (common practice, no published source)
     assert data["machine"]["rotor"] == "cylindrical-indirect"
     assert data["grounding"] == {"method": "distribution-transformer", "fault_current_limit": "8 A",
-                                 "transformer_ratio": "11000/240 V", "circuit_capacitance": "0.3 uF"}
+                                 "transformer_ratio": "11000/240 V", "system_capacitance": "0.3 uF"}
     assert "load" not in data
 
 

@@ -71,6 +71,7 @@ REST = [
     ("Total burden", "\r"),
     ("Core-balance", "\r"),
     ("Voltage transformer ratio", "\r"),
+    ("Differential CT ratio", "\r"),
     ("Which family of curves", "\r"),
     ("What next?", "\r"),
 ]

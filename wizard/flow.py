@@ -582,7 +582,8 @@ QUESTIONS: tuple[Question, ...] = (
              when=grounding_is("ungrounded", "high-resistance", "distribution-transformer"), help="e.g. 0.5 uF",
              blank=constant("not known")),
     Question("grounding.circuit_capacitance", "Capacitance of this machine's own cable and winding, per phase to "
-             "ground", "Circuit capacitance", "grounding", when=lambda a: a.get("grounding.method") != "solid",
+             "ground", "Circuit capacitance", "grounding",
+             when=both(M, lambda a: a.get("grounding.method") != "solid"),
              help="e.g. 0.12 uF", blank=constant("not known")),
 
     # instrument transformers
@@ -597,6 +598,14 @@ QUESTIONS: tuple[Question, ...] = (
              blank=constant("none")),
     Question("instruments.neutral_vt", "Neutral voltage transformer ratio", "Neutral VT", "instruments", when=G,
              help="e.g. 13800/120 V", blank=constant("none")),
+    Question("instruments.differential_ct", "Differential CT ratio (CTs at both ends of the winding)",
+             "Differential CTs", "instruments", help="e.g. 1000/5 A", blank=constant("none fitted")),
+    Question("instruments.differential_ct_class", "Differential CT accuracy class", "Differential CT class",
+             "instruments", when=lambda a: a.has("instruments.differential_ct"), help="e.g. C400 or 5P20",
+             blank=constant("not known")),
+    Question("instruments.differential_ct_burden", "Total burden on the differential CTs (leads and relay)",
+             "Differential CT burden", "instruments", when=lambda a: a.has("instruments.differential_ct"),
+             help="ohm", blank=constant("not known")),
 
     # study options
     Question("study.practice", "Which family of curves and capability tables?", "Practice", "study",
