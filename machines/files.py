@@ -254,7 +254,7 @@ def read_text(path: str | Path) -> str:
     except OSError as e:
         raise InputError(str(path), f"the file cannot be read ({e.strerror or e})") from None
     try:
-        return raw.decode("utf-8")
+        return raw.decode("utf-8-sig")  # a byte-order mark (some Windows editors write one) is not part of the text
     except UnicodeDecodeError as e:
         raise InputError(str(path), f"expected UTF-8 text, got a byte that is not UTF-8 at position {e.start}") \
             from None

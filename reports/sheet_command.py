@@ -61,7 +61,10 @@ def make_sheet(file: Path, output: Path | None = None, page_size: str | None = N
     if sign is not None and not Path(sign).is_file():
         raise InputError(str(sign), "no such key file (expected a PKCS#12 .p12/.pfx file)")
     case, warnings = load_case(file)
-    record = run_study(case, warnings)
+    try:
+        record = run_study(case, warnings)
+    except InputError as e:  # e.g. an override the study cannot use: say which file it is in
+        raise e.at(file) from None
     password = signing_password(Path(sign)) if sign is not None else None  # asked once the inputs are known good
     pdf = build_sheet(record, page_size)
     _warn_missing_glyphs(record)

@@ -88,3 +88,19 @@ def test_wrong_unit_in_file_names_file_key_and_value(tmp_path):
     lines = [line for line in r.stderr.splitlines() if line.strip()]
     assert len(lines) == 1
     assert "bad.toml: machine.rated_current:" in lines[0] and "'186 V'" in lines[0] and "a current" in lines[0]
+
+
+def test_a_byte_order_mark_is_accepted(tmp_path):
+    # some Windows editors start UTF-8 files with U+FEFF; it is not part of the TOML text
+    bom = tmp_path / "bom.toml"
+    bom.write_bytes(b"\xef\xbb\xbf" + MOTOR.read_bytes())
+    r = run_cli("settings", str(bom))
+    assert r.returncode in (0, 1), r.stderr
+
+
+def test_a_bad_override_names_the_file_and_the_key(tmp_path):
+    bad = tmp_path / "ov.toml"
+    bad.write_text(MOTOR.read_text("utf-8") + '\n[overrides]\n"51LR.bogus" = "3 s"\n', "utf-8")
+    r = run_cli("settings", str(bad))
+    assert r.returncode == 2
+    assert r.stderr.startswith(f"error: {bad}: overrides.51LR.bogus: function 51LR has no setting 'bogus'")

@@ -54,11 +54,15 @@ def _root(
 
 def _study(path: Path):
     """Read, validate and study one machine file: (case, record)."""
+    from machines.errors import InputError
     from machines.files import load_case
     from machines.study import run_study
 
     case, warnings = load_case(path)
-    return case, run_study(case, warnings)
+    try:
+        return case, run_study(case, warnings)
+    except InputError as e:  # e.g. an override the study cannot use: say which file it is in
+        raise e.at(path) from None
 
 
 @app.command("settings")
