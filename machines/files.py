@@ -238,21 +238,27 @@ def case_from_dict(data: Any) -> tuple[MachineCase, list[str]]:
     return case, validate_case(case)
 
 
-def read_text(path: str | Path) -> str:
+def read_bytes(path: str | Path, what: str = "a machine file (.toml)", limit: int | None = MAX_FILE_BYTES) -> bytes:
+    """A file's bytes, or InputError naming the path: missing, a folder, unreadable or larger than ``limit``."""
     p = Path(path)
     try:
         if p.is_dir():
-            raise InputError(str(path), "expected a machine file (.toml), got a folder")
+            raise InputError(str(path), f"expected {what}, got a folder")
         size = p.stat().st_size
-        if size > MAX_FILE_BYTES:
-            raise InputError(str(path), f"expected a machine file under 1 MB, got {size} bytes")
-        raw = p.read_bytes()
+        if limit is not None and size > limit:
+            raise InputError(str(path), f"expected {what} under {limit // 1_000_000} MB, got {size} bytes")
+        return p.read_bytes()
     except FileNotFoundError:
         raise InputError(str(path), "no such file") from None
     except PermissionError:
         raise InputError(str(path), "the file cannot be read (permission denied)") from None
     except OSError as e:
         raise InputError(str(path), f"the file cannot be read ({e.strerror or e})") from None
+
+
+def read_text(path: str | Path) -> str:
+    """A machine file's text (UTF-8), or InputError naming the path."""
+    raw = read_bytes(path)
     try:
         return raw.decode("utf-8-sig")  # a byte-order mark (some Windows editors write one) is not part of the text
     except UnicodeDecodeError as e:

@@ -163,14 +163,9 @@ def verify_pdf(pdf_bytes: bytes) -> VerifyResult:
 
 def verify_command(pdf: Path, machine: Path | None = None) -> int:
     """``relaywright verify``: report on stdout; 0 when everything matches, 1 when something does not."""
-    try:
-        data = Path(pdf).read_bytes()
-    except FileNotFoundError:
-        raise InputError(str(pdf), "no such file") from None
-    except IsADirectoryError:
-        raise InputError(str(pdf), "expected a PDF file, got a folder") from None
-    except OSError as e:
-        raise InputError(str(pdf), f"the file cannot be read ({e.strerror or e})") from None
+    from machines.files import read_bytes
+
+    data = read_bytes(pdf, "a PDF file", limit=None)
     if not _is_pdf(data):
         raise InputError(str(pdf), "expected a PDF settings sheet, got a file that is not a PDF")
 
