@@ -588,7 +588,7 @@ def rated_current_from_output(
 
     Examples
     --------
-    >>> round(rated_current_from_output(500 * 746.0, 4160.0, 0.95, 0.88), 2)  # REFERENCE 3.4 (1 hp = 746 W)
+    >>> round(rated_current_from_output(500 * 746.0, 4160.0, 0.95, 0.88), 2)  # METHODS.md §3.4 (1 hp = 746 W)
     61.92
     """
     return rated_output / (math.sqrt(3.0) * rated_voltage * efficiency * power_factor)

@@ -15,7 +15,7 @@ Models used (and stated on the sheet):
   double-cage rotor at standstill, so from standstill to breakdown (x = n/n_b) the curve is ours [D]: the
   locked-rotor torque with a pull-up dip, T = T_LR·(1 − 0.08·sin(π·x/0.5)) up to half the breakdown speed, then a
   parabolic rise T = T_LR + (T_b − T_LR)·u², u = (x − 0.5)/0.5, to the breakdown torque. The shape constants were
-  chosen so that, given only the end points of REFERENCE 3.4's maker-style torque table, the acceleration times
+  chosen so that, given only the end points of METHODS.md §3.4's maker-style torque table, the acceleration times
   come out 1–2 % longer than with the full table (tests/test_starting.py): an estimate on the safe side for the
   51LR window, not a substitute for the maker's curve.
 - **Current–slip curve**: I² = I_0² + (I_LR² − I_0²)·(1 + a²)/((a/s)² + 1), a magnetising current
@@ -198,7 +198,7 @@ def acceleration_times(speed, accelerating_torque, inertia: float, synchronous_s
 
     References
     ----------
-    Newton's law for rotation; REFERENCE 3.3.
+    Newton's law for rotation; METHODS.md §3.3.
 
     Examples
     --------
@@ -224,11 +224,11 @@ def acceleration_time_wk2(wk2: float, speed_change_rpm: float, accelerating_torq
 
     References
     ----------
-    Standard mechanics (308 ≈ 60·g/2π = 307.2 rounded); REFERENCE 3.3, 3.4.
+    Standard mechanics (308 ≈ 60·g/2π = 307.2 rounded); METHODS.md §3.3, 3.4.
 
     Examples
     --------
-    >>> round(acceleration_time_wk2(1000.0, 1780.0, 500.0), 2)   # REFERENCE 3.4: 11.56 s
+    >>> round(acceleration_time_wk2(1000.0, 1780.0, 500.0), 2)   # METHODS.md §3.4: 11.56 s
     11.56
     """
     return wk2 * speed_change_rpm / (308.0 * accelerating_torque_lbft)

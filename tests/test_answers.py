@@ -47,7 +47,7 @@ def test_a_partial_answers_file_takes_the_flows_defaults(tmp_path):
     answers.write_text(PARTIAL_MOTOR)
     assert session.run_new(answers=answers, output=out) == 0
     data = parse_toml(out.read_text())
-    # REFERENCE 3.4: 373 kW (500 hp at 746 W/hp), 4160 V, η 0.95, pf 0.88 → FLC 61.92 A
+    # METHODS.md §3.4: 373 kW (500 hp at 746 W/hp), 4160 V, η 0.95, pf 0.88 → FLC 61.92 A
     assert data["machine"]["rated_current"] == "61.92 A"
     # defaults from earlier answers: bus voltage = rated voltage; IEEE at 60 Hz (the file reader's own rule)
     assert data["supply"]["nominal_voltage"] == "4160 V" and data["study"]["practice"] == "IEEE"

@@ -218,7 +218,7 @@ def test_folder_without_toml_is_bad_input(tmp_path):
 
 
 def test_exit_code_is_the_worst_outcome():
-    # DESIGN.md, exit codes: 0 done (warnings included), 1 a check failed, 2 bad input
+    # README, exit codes: 0 done (warnings included), 1 a check failed, 2 bad input
     assert {s: code for s, (_, code, _) in OUTCOMES.items()} == {"skipped": 0, "older": 0, "ok": 0, "warn": 0,
                                                                   "fail": 1, "bad": 2}
     outcomes = [Outcome("a", "ok"), Outcome("b", "fail", failures=1), Outcome("c", "warn", warnings=2)]

@@ -69,7 +69,7 @@ def test_same_value_in_other_units_is_no_change(base, section, key, one, other):
 
 
 def test_default_written_out_is_no_change(base):
-    # machine.service_factor defaults to "1.0" (DESIGN.md); writing the default is not a change
+    # machine.service_factor defaults to "1.0" (DEVELOPERS.md glossary); writing the default is not a change
     no_sf = copy.deepcopy(base)
     del no_sf["machine"]["service_factor"]
     changes = compare(*studied(no_sf), *studied(edited(no_sf, machine={"service_factor": "1.0"})))
@@ -131,7 +131,7 @@ def test_change_below_four_figures_is_shown_with_six():
 
 
 def test_setting_float_noise_below_record_precision_is_no_change():
-    # the record keeps six significant figures (DESIGN.md, settings record)
+    # the record keeps six significant figures (DEVELOPERS.md, settings record)
     assert setting_changes(record([thermal(105.6, 0.704)]), record([thermal(105.6000001, 0.704)])) == []
 
 

@@ -101,14 +101,14 @@ def test_stage_tables_and_prime_mover_rotor_default():
 
 
 def test_rated_current_default_from_output_voltage_efficiency_power_factor():
-    # REFERENCE 3.4: 500 hp (at 746 W/hp = 373 kW), 4160 V, η 0.95, pf 0.88 → FLC 61.92 A
+    # METHODS.md §3.4: 500 hp (at 746 W/hp = 373 kW), 4160 V, η 0.95, pf 0.88 → FLC 61.92 A
     a = answers(machine={**MOTOR, "rated_output": "373 kW", "rated_voltage": "4160 V", "efficiency": "0.95",
                          "power_factor": "0.88"})
     assert flow.default(flow.find("machine.rated_current", a), a) == "61.92 A"
 
 
 def test_locked_rotor_current_blank_means_the_code_letter_range():
-    # REFERENCE 3.4 (NEMA MG 1 10.37.2): 500 hp, 4160 V, code G → I_LR 388.6–437.2 A
+    # METHODS.md §3.4 (NEMA MG 1 10.37.2): 500 hp, 4160 V, code G → I_LR 388.6–437.2 A
     a = answers(machine={**MOTOR, "rated_output": "500 hp", "rated_voltage": "4.16 kV", "efficiency": "0.95",
                          "power_factor": "0.88", "locked_rotor_code": "G"})
     text = flow.blank_meaning(flow.find("machine.locked_rotor_current"), a)
@@ -117,7 +117,7 @@ def test_locked_rotor_current_blank_means_the_code_letter_range():
 
 @pytest.mark.parametrize("frequency, practice", [("50 Hz", "IEC"), ("60 Hz", "IEEE")])
 def test_practice_default_from_frequency(frequency, practice):
-    # the machine file reader's own rule (DESIGN: default IEC at 50 Hz, IEEE at 60 Hz)
+    # the machine file reader's own rule (machine file rule: default IEC at 50 Hz, IEEE at 60 Hz)
     a = answers(machine={**MOTOR, "frequency": frequency})
     assert flow.default(flow.find("study.practice", a), a) == practice
 
@@ -199,7 +199,7 @@ def test_hot_stall_longer_than_cold_is_refused_at_once():
 
 
 def test_locked_rotor_current_outside_the_code_letter_is_a_warning():
-    # REFERENCE 3.4: code G at 500 hp, 4160 V allows 388.6–437.2 A; 600 A is outside, 420 A inside
+    # METHODS.md §3.4: code G at 500 hp, 4160 V allows 388.6–437.2 A; 600 A is outside, 420 A inside
     a = answers(machine={**MOTOR, "rated_output": "500 hp", "rated_voltage": "4.16 kV", "efficiency": "0.95",
                          "power_factor": "0.88", "locked_rotor_code": "G", "locked_rotor_current": "600 A"})
     a.flow["makers_data"] = True

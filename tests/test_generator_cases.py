@@ -1,7 +1,7 @@
 """Generator test cases built in code, and checks that the two example generators study cleanly.
 
 The builders are imported by the other generator tests. The numbers are invented for the tests (plausible, not from
-any real machine) except where a test says it reproduces a REFERENCE case.
+any real machine) except where a test says it reproduces a check value of METHODS.md.
 """
 
 from __future__ import annotations

@@ -1,4 +1,4 @@
-"""Each generator protection rule against REFERENCE 6–12 check values, and the edge cases of issue 4."""
+"""Each generator protection rule against METHODS.md §6–12 check values, and the edge cases of issue 4."""
 
 from __future__ import annotations
 
@@ -28,7 +28,7 @@ def _run(data):
 
 
 def test_loss_of_field_reference_case():
-    # IEEE C37.102 (value from memory), check values REFERENCE 9.6: 100 MVA, 13.8 kV, X'd 0.25, X_d 1.8,
+    # IEEE C37.102 (value from memory), check values METHODS.md §9.6: 100 MVA, 13.8 kV, X'd 0.25, X_d 1.8,
     # CTR 5000/5, VTR 14400/120
     s = study().function("40").settings
     assert s["zone1_offset"].value == pytest.approx(0.2381, rel=5e-4)
@@ -37,7 +37,7 @@ def test_loss_of_field_reference_case():
     assert s["zone1_diameter"].secondary == pytest.approx(15.87, rel=5e-4)
     assert s["zone2_diameter"].value == pytest.approx(3.428, rel=5e-4)
     assert s["zone2_diameter"].secondary == pytest.approx(28.57, rel=5e-4)
-    # secondary ohms = primary ohms × CTR / VTR (REFERENCE 9.2)
+    # secondary ohms = primary ohms × CTR / VTR (METHODS.md §9.2)
     for key in ("zone1_offset", "zone2_offset", "zone1_diameter", "zone2_diameter"):
         assert s[key].secondary == pytest.approx(s[key].value * 1000 / 120, rel=1e-12)
     # IEEE C37.102 delays (value from memory)
@@ -45,7 +45,7 @@ def test_loss_of_field_reference_case():
 
 
 def test_loss_of_field_circles_on_the_drawing():
-    # REFERENCE 9.6: far reach zone 1 −17.85 Ω sec, zone 2 −30.55 Ω sec
+    # METHODS.md §9.6: far reach zone 1 −17.85 Ω sec, zone 2 −30.55 Ω sec
     rx = next(d for d in study().drawings if d.kind == "r-x")
     bottoms = sorted(c.center[1] - c.radius for c in rx.circles)
     assert bottoms == pytest.approx([-30.55, -17.85], rel=5e-4)
@@ -55,7 +55,7 @@ def test_loss_of_field_circles_on_the_drawing():
 
 
 def test_51v_reference_case_fails():
-    # REFERENCE 9.6: I_r = 4184 A, 150 % → 6276 A at rated voltage; at 0.4 pu the pickup (2510 A) is above the
+    # METHODS.md §9.6: I_r = 4184 A, 150 % → 6276 A at rated voltage; at 0.4 pu the pickup (2510 A) is above the
     # sustained fault current E/X_d = 2324 A: the setting fails the check
     data = generator_data()
     data["overrides"] = {"51V.check_voltage": "0.4 pu"}
@@ -66,14 +66,14 @@ def test_51v_reference_case_fails():
 
 
 def test_51v_terminal_fault_warns_without_margin():
-    # REFERENCE 9.4 [derived]: at the restraint floor 0.25 × 6276 = 1569 A; 2324/1569 = 1.48 < margin 2 → warning
+    # METHODS.md §9.4 [derived]: at the restraint floor 0.25 × 6276 = 1569 A; 2324/1569 = 1.48 < margin 2 → warning
     fs = study().function("51V")
     assert "warn" in _statuses(fs, "ratio 1.48")
     assert "fail" not in {c.status for c in fs.checks}
 
 
 def test_51v_low_xd_machine_passes():
-    # REFERENCE 9.4 [derived]: X_d = 0.9 → E/X_d = 1.111 pu ≥ 2 × 0.375 pu
+    # METHODS.md §9.4 [derived]: X_d = 0.9 → E/X_d = 1.111 pu ≥ 2 × 0.375 pu
     fs = study(**{"machine.xd": "0.9 pu"}).function("51V")
     assert "ok" in _statuses(fs, "sustained fault")
 
@@ -95,7 +95,7 @@ def test_51v_time_multiplier_and_test_points():
 
 
 def test_46_terminal_phase_phase_fault():
-    # REFERENCE 6.4: X1 = X2 = 0.2 pu, E = 1 → I2 = 2.5 pu → 1.600 s at K = 10 (the machine's limit)
+    # METHODS.md §6.4: X1 = X2 = 0.2 pu, E = 1 → I2 = 2.5 pu → 1.600 s at K = 10 (the machine's limit)
     record = study(**{"machine.xd_subtransient": "0.2 pu", "machine.negative_sequence_k": "10 s",
                       "machine.negative_sequence_continuous": "0.08 pu"})
     assert record.derived["phase_phase_fault_i2"].value == pytest.approx(2.5 * 4183.7, rel=5e-4)
@@ -109,7 +109,7 @@ def test_46_terminal_phase_phase_fault():
 
 
 def test_46_tables_by_practice():
-    # IEEE C50.13 cylindrical indirectly cooled: 10 % / 30 s (REFERENCE 6.1); IEC 60034-1: 0.10 / 10 s (6.2)
+    # IEEE C50.13 cylindrical indirectly cooled: 10 % / 30 s (METHODS.md §6.1); IEC 60034-1: 0.10 / 10 s (6.2)
     assert study().function("46").settings["continuous_i2"].value == pytest.approx(0.10)
     assert study().derived["negative_sequence_k"].value == 30.0
     assert study(**{"study.practice": "IEC"}).derived["negative_sequence_k"].value == 10.0
@@ -119,7 +119,7 @@ def test_46_tables_by_practice():
 
 
 def test_46_salient_without_damper():
-    # IEEE C50.12, non-connected amortisseur: 5 % continuous, K = 40 s (REFERENCE 6.1, value from memory)
+    # IEEE C50.12, non-connected amortisseur: 5 % continuous, K = 40 s (METHODS.md §6.1, value from memory)
     record = study(**{"machine.rotor": "salient-without-damper", "machine.rated_speed": "450 rpm",
                       "machine.prime_mover": "hydro"})
     fs = record.function("46")
@@ -139,13 +139,13 @@ def _large_direct(**extra):
 
 
 def test_46_directly_cooled_above_800_mva():
-    # IEEE C50.13: K = 10 − 0.00625·(1000 − 800) = 8.75 s; C50.13-2005 continuous 5.833 % (REFERENCE 6.4)
+    # IEEE C50.13: K = 10 − 0.00625·(1000 − 800) = 8.75 s; C50.13-2005 continuous 5.833 % (METHODS.md §6.4)
     record = _large_direct()
     assert record.derived["negative_sequence_k"].value == pytest.approx(8.75)
     s = record.function("46").settings
     assert s["continuous_i2"].value == pytest.approx(0.05833, rel=5e-4)
     assert s["k_constant"].value == pytest.approx(0.9 * 8.75)
-    # IEC 60034-1 at 1000 MVA: K = 5 s (REFERENCE 6.2)
+    # IEC 60034-1 at 1000 MVA: K = 5 s (METHODS.md §6.2)
     assert _large_direct(**{"study.practice": "IEC"}).derived["negative_sequence_k"].value == pytest.approx(5.0)
 
 
@@ -162,7 +162,7 @@ def _eighteen_kv(**extra):
 
 
 def test_59n_reference_case():
-    # IEEE C37.101 / C62.92.2 (value from memory), check values REFERENCE 7.3: 18 kV, 60 Hz, C0 = 0.25 µF
+    # IEEE C37.101 / C62.92.2 (value from memory), check values METHODS.md §7.3: 18 kV, 60 Hz, C0 = 0.25 µF
     record = _eighteen_kv()
     d = record.derived
     assert d["charging_current"].value == pytest.approx(2.938, rel=5e-4)
@@ -174,23 +174,23 @@ def test_59n_reference_case():
     assert d["earth_fault_current"].value == pytest.approx(4.155, rel=5e-4)
     assert d["resistor_power"].value == pytest.approx(30.54e3, rel=5e-4)
     assert d["neutral_voltage"].secondary == pytest.approx(138.6, rel=5e-4)
-    # REFERENCE 7.3: 59N at 5 % → 6.928 V secondary, 95 % coverage
+    # METHODS.md §7.3: 59N at 5 % → 6.928 V secondary, 95 % coverage
     assert s["pickup_voltage"].secondary == pytest.approx(6.928, rel=5e-4)
     assert s["coverage"].value == pytest.approx(0.95)
-    # REFERENCE 7.3: faults at 10 % / 50 % from the neutral give 13.86 / 69.28 V; both trip
+    # METHODS.md §7.3: faults at 10 % / 50 % from the neutral give 13.86 / 69.28 V; both trip
     applied = sorted(t.applied for t in record.function("59N").test_points if "neutral" in t.description)
     assert applied == pytest.approx([13.86, 69.28], rel=5e-4)
 
 
 def test_installed_resistor_too_large_warns():
-    # R_N ≤ X_C0/3 (REFERENCE 7.1): 1.0 Ω on the 18000/240 secondary = 5625 Ω > 3537 Ω
+    # R_N ≤ X_C0/3 (METHODS.md §7.1): 1.0 Ω on the 18000/240 secondary = 5625 Ω > 3537 Ω
     fs = _eighteen_kv(**{"grounding.resistor": "1.0 ohm"}).function("59N")
     assert fs.settings["grounding_resistor"].source == "entered"
     assert "warn" in _statuses(fs, "exceeds X_C0/3")
 
 
 def test_27tn_from_third_harmonic():
-    # REFERENCE 7.1 (value from memory): 27TN at 50 % of the lowest healthy V3N; 300 V → 150 V, 13800/240 neutral VT
+    # METHODS.md §7.1 (value from memory): 27TN at 50 % of the lowest healthy V3N; 300 V → 150 V, 13800/240 neutral VT
     s = study().function("27TN").settings
     assert s["pickup_voltage"].value == pytest.approx(150.0)
     assert s["pickup_voltage"].secondary == pytest.approx(150.0 * 240 / 13800, rel=1e-12)
@@ -203,7 +203,7 @@ def test_no_third_harmonic_data_leaves_27tn_out_with_warning():
 
 
 def test_low_resistance_grounding_gives_51n():
-    # REFERENCE 7.2 (common practice): pickup 10 % of the 400 A limit → 90 % of the winding covered
+    # METHODS.md §7.2 (common practice): pickup 10 % of the 400 A limit → 90 % of the winding covered
     record = study(**{"grounding.method": "low-resistance", "grounding.fault_current_limit": "400 A",
                       "instruments.ground_ct": "400/5 A"})
     assert record.function("59N") is None and record.function("27TN") is None
@@ -218,7 +218,7 @@ def test_low_resistance_grounding_gives_51n():
 
 
 @pytest.mark.parametrize("prime_mover, rotor, speed, primary, secondary", [
-    # Blackburn & Domin motoring power, 50 % pickup; check values REFERENCE 9.6 (85 MW, CTR 1000, VTR 120)
+    # Blackburn & Domin motoring power, 50 % pickup; check values METHODS.md §9.6 (85 MW, CTR 1000, VTR 120)
     ("steam-turbine", "cylindrical-indirect", "3600 rpm", 0.8500e6, 7.083),
     ("hydro", "salient-with-damper", "450 rpm", 0.4250e6, 3.542),
     ("reciprocating-engine", "salient-with-damper", "900 rpm", 10.62e6, 88.54),
@@ -246,14 +246,14 @@ def test_reverse_power_measuring_range():
 
 
 def test_vhz_common_base():
-    # IEEE C37.102 common base, REFERENCE 9.6: 13.8 kV generator on a 13.2 kV LV winding: the transformer's
+    # IEEE C37.102 common base, METHODS.md §9.6: 13.8 kV generator on a 13.2 kV LV winding: the transformer's
     # 1.05 pu is 1.05 × 13.2/13.8 = 1.004 pu on the generator base and governs (1.05 pu of 13.8 kV = 1.098 on it)
     fs = study(**{"supply.transformer_lv_voltage": "13.2 kV"}).function("24")
     s = fs.settings
     assert s["alarm_pickup"].value == pytest.approx(1.05 * 13.2 / 13.8, rel=1e-9)
     assert 1.05 * 13.8 / 13.2 == pytest.approx(1.098, rel=5e-4)
     assert "warn" in _statuses(fs, "below the 1.05 pu")
-    # the generator governs when the transformer matches; REFERENCE 9.3: trip ≈ 1.10 pu
+    # the generator governs when the transformer matches; METHODS.md §9.3: trip ≈ 1.10 pu
     s2 = study().function("24").settings
     assert (s2["alarm_pickup"].value, s2["trip_pickup"].value) == pytest.approx((1.05, 1.10))
     # relay side in V/Hz on the VT secondary: 1.10 × (13800/120) / 60 (14400/120 VT)
@@ -264,7 +264,7 @@ def test_vhz_common_base():
 
 
 def test_49_time_constant_fits_c50_13():
-    # IEC 60255-149 hot operate time ≤ C50.13 armature capability at each point (REFERENCE 2.1, 10)
+    # IEC 60255-149 hot operate time ≤ C50.13 armature capability at each point (METHODS.md §2.1, 10)
     fs = study().function("49")
     tau = fs.settings["heating_time_constant"].value
     # [derived] the 116 % / 120 s point limits τ: 120 / ln((1.16² − 1)/(1.16² − 1.05²)) = 341.1 s
@@ -309,7 +309,7 @@ def test_stages_from_maker_bands_below_and_after_load_shedding():
     fs = record.function("81U")
     stages = fs.settings["stages"].value
     assert fs.settings["stages"].source == "maker-data"
-    # IEEE C37.106 coordination (REFERENCE 8.2): every stage below 58.5 Hz and slower than 0.3 s
+    # IEEE C37.106 coordination (METHODS.md §8.2): every stage below 58.5 Hz and slower than 0.3 s
     assert all(s["frequency"] < 58.5 and s["time_delay"] > 0.3 for s in stages)
     assert "fail" not in {c.status for c in fs.checks}
     # the 59.5 Hz band edge moves to 58.4 Hz, inside the 57.5–58.5 Hz band: delay 10 % of 600 s (common practice)
@@ -332,7 +332,7 @@ def test_stage_above_load_shedding_fails():
 
 
 def test_rocof_check_on_81u():
-    # swing equation, REFERENCE 8.4: 85 MW of 850 MVA, H = 4 s → −0.75 Hz/s
+    # swing equation, METHODS.md §8.4: 85 MW of 850 MVA, H = 4 s → −0.75 Hz/s
     fs = study(**{"supply.system_rating": "850 MVA", "supply.system_inertia": "4 s"}).function("81U")
     assert "ok" in _statuses(fs, "-0.75 Hz/s")
 
@@ -343,11 +343,11 @@ def test_rocof_check_on_81u():
 def test_87g_settings_and_slope_points():
     fs = study().function("87G")
     s = fs.settings
-    # REFERENCE 9.5 (common practice): 0.3 A on 5 A CTs, 10 % slope
+    # METHODS.md §9.5 (common practice): 0.3 A on 5 A CTs, 10 % slope
     assert s["minimum_pickup"].secondary == pytest.approx(0.3)
     assert s["slope"].value == 0.10
     slope_pts = [t for t in fs.test_points if "slope" in t.description and t.expected_time]
-    # REFERENCE 9.6: with 0.3 A and 10 %, the threshold at restraint I is max(0.3, 0.1·I)
+    # METHODS.md §9.6: with 0.3 A and 10 %, the threshold at restraint I is max(0.3, 0.1·I)
     for t in slope_pts:
         restraint = float(t.initial_state.split()[2])
         assert t.applied == pytest.approx(1.1 * max(0.3, 0.1 * restraint), rel=1e-3)  # restraint printed 4 s.f.
@@ -365,7 +365,7 @@ def test_87g_ct_saturation(cls, burden, status):
     i_f = 1.1 * 4183.7 / 0.18
     vc = float(cls[1:])
     r = float(burden.split()[0])
-    # IEEE C37.110 criterion written out (REFERENCE 11.1): (1 + X/R)·(I_f/I_CT)·(Z_b/(V_C/100))
+    # IEEE C37.110 criterion written out (METHODS.md §11.1): (1 + X/R)·(I_f/I_CT)·(Z_b/(V_C/100))
     expected = (1 + 40) * (i_f / 5000) * (r / (vc / 100))
     assert record.derived["differential_ct_saturation_index"].value == pytest.approx(expected, rel=1e-3)
     assert expected == pytest.approx(c37110_saturation_index(i_f, 5000, r, vc, 40), rel=1e-12)
@@ -378,7 +378,7 @@ def test_87g_ct_saturation(cls, burden, status):
 def test_voltage_elements():
     record = study()
     u, o = record.function("27").settings, record.function("59").settings
-    # common practice, no published source: 0.80 pu for 3 s; REFERENCE 13: 1.10 pu and 1.30 pu
+    # common practice, no published source: 0.80 pu for 3 s; METHODS.md §13: 1.10 pu and 1.30 pu
     assert u["pickup_voltage"].value == pytest.approx(0.8 * 13.8e3)
     assert u["pickup_voltage"].secondary == pytest.approx(0.8 * 13.8e3 * 120 / 14400)
     assert o["pickup_voltage"].value == pytest.approx(1.1 * 13.8e3)
@@ -398,7 +398,7 @@ def test_prepare_keeps_the_basis():
 
 def test_51v_check_uses_the_current_the_fault_voltage_allows():
     # [derived] a fault that leaves 0.4 pu at the terminals is fed with (1 − 0.4)/X_d = 0.3333 pu = 1395 A, less
-    # than the terminal-fault E/X_d of REFERENCE 9.6
+    # than the terminal-fault E/X_d of METHODS.md §9.6
     data = generator_data()
     data["overrides"] = {"51V.check_voltage": "0.4 pu"}
     msg = next(c.message for c in _run(data).function("51V").checks if c.status == "fail")
@@ -431,7 +431,7 @@ def test_gas_turbine_with_bands_only_above_nominal():
 
 
 def test_stator_thermal_takes_the_makers_time_constants():
-    # maker's data win over the fitted constant (DESIGN: maker-data source); IEC 60255-149 replica, IEEE C50.13 check
+    # maker's data win over the fitted constant (maker-data source); IEC 60255-149 replica, IEEE C50.13 check
     fs = study(**{"machine.heating_time_constant": "4 min", "machine.cooling_time_constant": "30 min"}).function("49")
     assert fs.settings["heating_time_constant"].value == pytest.approx(240.0)
     assert fs.settings["heating_time_constant"].source == "maker-data"

@@ -89,12 +89,12 @@ def test_study_of_any_plausible_generator(data):
     s46 = record.function("46").settings
     assert s46["k_constant"].value <= record.derived["negative_sequence_k"].value
     assert s46["continuous_i2"].value <= record.derived["negative_sequence_capability"].value
-    # 40: secondary ohms = primary × CTR/VTR (REFERENCE 9.2), zone 2 reaches X_d
+    # 40: secondary ohms = primary × CTR/VTR (METHODS.md §9.2), zone 2 reaches X_d
     s40 = record.function("40").settings
     factor = case_from_dict(data)[0].instruments.phase_ct.factor / case_from_dict(data)[0].instruments.vt.factor
     for key in ("zone1_offset", "zone2_diameter"):
         assert math.isclose(s40[key].secondary, s40[key].value * factor, rel_tol=1e-12)
-    # 59N covers 95 % when it applies (REFERENCE 7.1)
+    # 59N covers 95 % when it applies (METHODS.md §7.1)
     if record.function("59N") is not None:
         assert math.isclose(record.function("59N").settings["coverage"].value, 0.95)
     # drawings: positive, finite points on logarithmic axes

@@ -13,14 +13,14 @@ from machines.standards.accuracy import operate_time_tolerance
 
 from conftest import run_cli
 from test_generator_cases import generator_data, study
-from test_record import REQUIRED as DESIGN_TABLE
+from test_record import REQUIRED as STABLE_IDS
 
 GENERATOR_IDS = ("49", "46", "27", "81U", "59N", "27TN", "32", "40", "24", "51V")
-# DESIGN.md, table of stable function ids and required setting keys (shared with test_record), plus the
+# DEVELOPERS.md, table of stable function ids and required setting keys (shared with test_record), plus the
 # generator-only keys of that table and the functions issue 4 adds
 EXTRA = {"46": {"continuous_i2", "k_constant"}, "59N": {"grounding_resistor"}, "81O": {"stages"},
          "59": {"pickup_voltage", "time_delay"}, "87G": {"minimum_pickup", "slope"}}
-REQUIRED = {fid: set(DESIGN_TABLE.get(fid, set())) | EXTRA.get(fid, set()) for fid in (*GENERATOR_IDS, *EXTRA)}
+REQUIRED = {fid: set(STABLE_IDS.get(fid, set())) | EXTRA.get(fid, set()) for fid in (*GENERATOR_IDS, *EXTRA)}
 
 
 def test_function_ids_and_required_keys():
@@ -39,16 +39,16 @@ def test_function_ids_and_required_keys():
 def test_derived_values():
     record = study(**{"supply.system_rating": "850 MVA", "supply.system_inertia": "4 s"})
     d = record.derived
-    # REFERENCE 9.6: 100 MVA, 13.8 kV → Z_b = 1.904 Ω; ×8.333 on the relay side (5000/5, 14400/120)
+    # METHODS.md §9.6: 100 MVA, 13.8 kV → Z_b = 1.904 Ω; ×8.333 on the relay side (5000/5, 14400/120)
     assert d["base_impedance"].value == pytest.approx(1.904, rel=5e-4)
     assert d["base_impedance"].secondary == pytest.approx(1.904 * 8.333, rel=5e-4)
-    # REFERENCE 9.6: I_r = 4184 A, sustained E/X_d = 2324 A
+    # METHODS.md §9.6: I_r = 4184 A, sustained E/X_d = 2324 A
     assert d["rated_current"].value == pytest.approx(4184, rel=5e-4)
     assert d["sustained_fault_current"].value == pytest.approx(2324, rel=5e-4)
-    # IEEE C62.92.2: 3·ω·C0·V_LN with C0 = 0.2 + 0.05 µF at 13.8 kV [derived from REFERENCE 7.1]
+    # IEEE C62.92.2: 3·ω·C0·V_LN with C0 = 0.2 + 0.05 µF at 13.8 kV [derived from METHODS.md §7.1]
     assert d["charging_current"].value == pytest.approx(3 * 2 * math.pi * 60 * 0.25e-6 * 13.8e3 / math.sqrt(3),
                                                         rel=1e-9)
-    # swing equation, REFERENCE 8.4: 85 MW lost from 850 MVA (ΔP = 0.1), H = 4 s, 60 Hz → −0.75 Hz/s
+    # swing equation, METHODS.md §8.4: 85 MW lost from 850 MVA (ΔP = 0.1), H = 4 s, 60 Hz → −0.75 Hz/s
     assert d["initial_rocof"].value == pytest.approx(-0.75, rel=1e-9)
 
 
@@ -86,7 +86,7 @@ def test_test_points_have_tolerance_bands():
         assert timed, fs.id
         for t in timed:
             assert t.expected_time > 0 and math.isfinite(t.expected_time)
-            # IEC 60255-151 template (REFERENCE 12.2)
+            # IEC 60255-151 template (METHODS.md §12.2)
             assert t.tolerance_time == pytest.approx(operate_time_tolerance(t.expected_time))
     for fid in ("46", "49", "51V"):  # inverse elements: at least three timed multiples
         assert len([t for t in record.function(fid).test_points if t.expected_time]) >= 3
@@ -108,7 +108,7 @@ def test_drawings_are_finite_and_positive_on_log_axes():
 
 
 def test_failed_check_makes_the_command_exit_1(tmp_path):
-    # REFERENCE 9.6: 150 % pickup, 0.4 pu fault voltage → restrained pickup 2510 A above E/X_d = 2324 A: fails
+    # METHODS.md §9.6: 150 % pickup, 0.4 pu fault voltage → restrained pickup 2510 A above E/X_d = 2324 A: fails
     data = generator_data()
     data["overrides"] = {"51V.check_voltage": "0.4 pu"}
     path = tmp_path / "g.toml"
@@ -125,7 +125,7 @@ DERIVED_ONLY = {("59N", "grounding_resistor"), ("51N", "coverage")}  # sized fro
 
 @pytest.mark.parametrize("method", ["distribution-transformer", "low-resistance"])
 def test_every_numeric_setting_can_be_overridden(method):
-    # DESIGN.md: a user may override any computed setting; the rule then checks the value it gets back
+    # DEVELOPERS.md: a user may override any computed setting; the rule then checks the value it gets back
     changes = {"grounding.method": method, "grounding.fault_current_limit": "400 A"}
     record = study(**changes)
     units = {"pu V/Hz": "pu"}

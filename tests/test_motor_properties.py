@@ -1,6 +1,6 @@
 """Property tests over plausible induction motors: the protection invariants hold, or the finding is raised.
 
-Invariants (issue 3; REFERENCE 3.2, 4.1, 13):
+Invariants (issue 3; METHODS.md §3.2, 4.1, 13):
 - pickups ordered: 49 < 51LR < 50P (or a failed 51LR/50P check says why not);
 - the 51LR delay lies in [1.1 × acceleration time, 0.9 × hot stall time], or a speed switch is required and a
   warning says so, or the motor does not accelerate and a failure says so;
@@ -152,7 +152,7 @@ def test_protection_invariants(data):
 @settings(max_examples=40, deadline=None, derandomize=True, suppress_health_check=[HealthCheck.too_slow])
 @given(motors(), st.floats(0.2, 3.0))
 def test_overridden_values_are_checked(data, factor):
-    """An engineer's value replaces the computed one and is checked like it (DESIGN.md)."""
+    """An engineer's value replaces the computed one and is checked like it (DEVELOPERS.md, overrides)."""
     case, w = case_from_dict(data)
     base = run_study(case, w)
     p51 = base.function("51LR").settings["pickup_current"].value

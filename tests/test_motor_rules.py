@@ -66,7 +66,7 @@ def value(record, fid, key):
 
 
 def test_ids_and_required_keys():
-    # DESIGN.md table of stable ids and required keys
+    # DEVELOPERS.md table of stable ids and required keys
     rec = study(load__minimum_load="0.4 pu")
     need = {"49": {"pickup_current", "heating_time_constant", "cooling_time_constant"},
             "51LR": {"pickup_current", "time_delay", "speed_switch_required"},
@@ -94,7 +94,7 @@ def test_secondary_values_through_cts():
 
 
 def test_thermal_test_points_from_cold():
-    # IEC 60255-149 cold curve; tolerance ± 5 % or ± 30 ms (IEC 60255-151 template, REFERENCE 12.2)
+    # IEC 60255-149 cold curve; tolerance ± 5 % or ± 30 ms (IEC 60255-151 template, METHODS.md §12.2)
     rec = study()
     f = rec.function("49")
     pk, tau = f.settings["pickup_current"].value, f.settings["heating_time_constant"].value
@@ -108,7 +108,7 @@ def test_thermal_test_points_from_cold():
 
 
 def test_definite_time_test_points():
-    # REFERENCE 12: definite-time elements get a pickup test and a delay test
+    # METHODS.md §12: definite-time elements get a pickup test and a delay test
     rec = study()
     for fid in ("51LR", "50G", "27", "46"):
         tps = rec.function(fid).test_points
@@ -117,7 +117,7 @@ def test_definite_time_test_points():
 
 
 def test_drawing_points_positive_and_in_range():
-    # reportlab log axes refuse values ≤ 0 (STACK.md): every point positive, finite and inside the range
+    # reportlab log axes refuse values ≤ 0 (measured: values ≤ 0 raise in LogValueAxis): every point positive, finite and inside the range
     rec = study()
     (d,) = [d for d in rec.drawings if d.kind == "time-current"]
     assert d.log_x and d.log_y and d.x_label == "Current [A primary]" and d.y_label == "Time [s]"
@@ -135,7 +135,7 @@ def test_drawing_points_positive_and_in_range():
 
 
 def test_sf_115_vs_10():
-    # REFERENCE 2.4 [P] and NEC 430.32(A)(1): SF 1.0 → 1.05 × FLC (limit 115 %), SF 1.15 → 1.20 × FLC (limit 125 %)
+    # METHODS.md §2.4 [P] and NEC 430.32(A)(1): SF 1.0 → 1.05 × FLC (limit 115 %), SF 1.15 → 1.20 × FLC (limit 125 %)
     r10, r115 = study(), study(machine__service_factor=1.15)
     flc = r10.derived["rated_current"].value
     assert value(r10, "49", "pickup_current") == pytest.approx(1.05 * flc)
@@ -153,7 +153,7 @@ def test_49_override_above_nec_fails_on_ieee_practice():
 
 
 def test_49_shows_locked_rotor_times_and_margins():
-    # REFERENCE 2.2 [D]: fitted to the hot stall, the replica trips hot at I_LR in t_sh and from cold much later
+    # METHODS.md §2.2 [D]: fitted to the hot stall, the replica trips hot at I_LR in t_sh and from cold much later
     rec = study()
     s = rec.function("49").settings
     assert s["trip_time_locked_rotor_hot"].value == pytest.approx(14.0, rel=1e-6)
@@ -162,13 +162,13 @@ def test_49_shows_locked_rotor_times_and_margins():
 
 
 def test_49_short_time_constant_trips_start():
-    # IEC 60255-149 replica run through the start: a τ fitted to the cold stall trips a hot start (REFERENCE 2.2)
+    # IEC 60255-149 replica run through the start: a τ fitted to the cold stall trips a hot start (METHODS.md §2.2)
     rec = study(**{"overrides__49.heating_time_constant": "60 s"})
     assert any("trip during a normal start" in m for m in messages(rec, "fail", "49"))
 
 
 def test_maker_time_constant_is_used():
-    # DESIGN.md: the maker's data take precedence over a fitted value
+    # DEVELOPERS.md: the maker's data take precedence over a fitted value
     rec = study(machine__heating_time_constant="40 min")
     s = rec.function("49").settings["heating_time_constant"]
     assert s.value == pytest.approx(2400.0) and s.source == "maker-data"
@@ -178,7 +178,7 @@ def test_maker_time_constant_is_used():
 
 
 def test_51lr_window_and_order():
-    # REFERENCE 3.2 [P]: pickup between overload and 0.8·I_LR·V_min; delay in [1.1·t_acc, 0.9·t_sh]
+    # METHODS.md §3.2 [P]: pickup between overload and 0.8·I_LR·V_min; delay in [1.1·t_acc, 0.9·t_sh]
     rec = study()
     f = rec.function("51LR")
     acc = rec.derived["acceleration_time"].value
@@ -188,7 +188,7 @@ def test_51lr_window_and_order():
 
 
 def test_acceleration_longer_than_hot_stall_needs_speed_switch():
-    # REFERENCE 3.2/3.4: no delay window → zero-speed switch
+    # METHODS.md §3.2/3.4: no delay window → zero-speed switch
     rec = study(load__inertia="400 kg*m^2")
     acc = rec.derived["acceleration_time"].value
     assert acc > 14.0
@@ -199,7 +199,7 @@ def test_acceleration_longer_than_hot_stall_needs_speed_switch():
 
 
 def test_speed_switch_override_false_fails():
-    # REFERENCE 3.2 [P]: with no delay window a zero-speed switch is needed; an override cannot remove the need
+    # METHODS.md §3.2 [P]: with no delay window a zero-speed switch is needed; an override cannot remove the need
     rec = study(load__inertia="400 kg*m^2", **{"overrides__51LR.speed_switch_required": "false"})
     assert any("speed_switch_required was set false" in m for m in messages(rec, "fail", "51LR"))
 
@@ -208,7 +208,7 @@ def test_speed_switch_override_false_fails():
 
 
 def test_cannot_accelerate_at_minimum_voltage():
-    # REFERENCE 3.3: T_m·V² ≤ T_L below breakdown speed → failed check
+    # METHODS.md §3.3: T_m·V² ≤ T_L below breakdown speed → failed check
     rec = study(supply__minimum_starting_voltage="0.6 pu", load__torque_profile="constant",
                 load__torque_at_rated_speed="0.95 pu")
     assert rec.derived["acceleration_time"].value is None
@@ -231,7 +231,7 @@ def test_starting_voltage_from_fault_level_when_not_given():
 
 
 def test_inertia_in_wk2():
-    # REFERENCE 3.3: J [kg·m²] = 0.04214 × WK² [lb·ft²]
+    # METHODS.md §3.3: J [kg·m²] = 0.04214 × WK² [lb·ft²]
     a = study(load__inertia="40 kg*m^2").derived["acceleration_time"].value
     b = study(load__inertia=f"{40 / 0.0421401101:.6f} lb*ft^2").derived["acceleration_time"].value
     assert a == pytest.approx(b, rel=1e-6)
@@ -262,7 +262,7 @@ def test_code_letter_v_warns():
 
 
 def test_50p_breaker():
-    # REFERENCE 4.1: 1.8 × symmetrical I_LR, no delay, sensitivity ≥ 2 × against the min phase-to-phase fault
+    # METHODS.md §4.1: 1.8 × symmetrical I_LR, no delay, sensitivity ≥ 2 × against the min phase-to-phase fault
     rec = study()
     f = rec.function("50P")
     flc = rec.derived["rated_current"].value
@@ -273,13 +273,13 @@ def test_50p_breaker():
 
 
 def test_50p_low_pickup_fails():
-    # REFERENCE 4.2: the half-cycle asymmetrical factor at X/R 15 is about 1.5 × I_LR
+    # METHODS.md §4.2: the half-cycle asymmetrical factor at X/R 15 is about 1.5 × I_LR
     rec = study(**{"overrides__50P.pickup_current": f"{1.3 * 6.2 * 61.9:.1f} A"})
     assert any("would trip on the starting inrush" in m for m in messages(rec, "fail", "50P"))
 
 
 def test_fused_contactor_complete_data():
-    # REFERENCE 4.1/4.2: 50P out of service, trips blocked above 0.9 × the contactor breaking current
+    # METHODS.md §4.1/4.2: 50P out of service, trips blocked above 0.9 × the contactor breaking current
     rec = study(supply__starter="fused-contactor", supply__contactor_breaking_current="4 kA",
                 supply__fuse_rating="200 A")
     f = rec.function("50P")
@@ -290,14 +290,14 @@ def test_fused_contactor_complete_data():
 
 
 def test_fused_contactor_missing_fuse_data_warns():
-    # REFERENCE 4.1 (UL 347 practice [F-v][P]): take-over needs the fuse and the contactor data
+    # METHODS.md §4.1 (UL 347 practice [F-v][P]): take-over needs the fuse and the contactor data
     rec = study(supply__starter="fused-contactor")
     assert any("take-over cannot be judged" in m for m in messages(rec, "warn", "50P"))
     assert any("block" in m for m in messages(rec, "warn", "50P"))
 
 
 def test_fused_contactor_50p_enabled_above_block_fails():
-    # REFERENCE 4.1 [P]: an enabled 50P must sit below the trip block threshold
+    # METHODS.md §4.1 [P]: an enabled 50P must sit below the trip block threshold
     rec = study(supply__starter="fused-contactor", supply__contactor_breaking_current="4 kA",
                 supply__fuse_rating="200 A", **{"overrides__50P.enabled": "true", "overrides__50P.pickup_current": "3800 A"})
     assert any("at or above the trip block threshold" in m for m in messages(rec, "fail", "50P"))
@@ -307,7 +307,7 @@ def test_fused_contactor_50p_enabled_above_block_fails():
 
 
 def test_fused_contactor_that_cannot_break_locked_rotor_current():
-    # REFERENCE 4.1 [P]: the contactor must interrupt at least the locked-rotor current
+    # METHODS.md §4.1 [P]: the contactor must interrupt at least the locked-rotor current
     rec = study(supply__starter="fused-contactor", supply__contactor_breaking_current="0.4 kA",
                 supply__fuse_rating="200 A")
     assert any("cannot interrupt a stalled motor" in m for m in messages(rec, "fail", "50P"))
@@ -317,7 +317,7 @@ def test_fused_contactor_that_cannot_break_locked_rotor_current():
 
 
 def test_46_heating_weight_and_derating_table():
-    # REFERENCE 5.3 [D]: K = T_LR/(s·I_LR²); NEMA MG 1 Fig. 14-1 digitised as a derived table
+    # METHODS.md §5.3 [D]: K = T_LR/(s·I_LR²); NEMA MG 1 Fig. 14-1 digitised as a derived table
     rec = study()
     s = rec.function("46").settings
     slip = (1800 - 1785) / 1800
@@ -328,9 +328,9 @@ def test_46_heating_weight_and_derating_table():
 
 
 def test_50g_low_resistance():
-    # REFERENCE 7.2 [P]: ≥ 2 × own charging current, ≤ 10–20 % of the earth-fault current; check value REFERENCE 7.3
+    # METHODS.md §7.2 [P]: ≥ 2 × own charging current, ≤ 10–20 % of the earth-fault current; check value METHODS.md §7.3
     rec = study(grounding__circuit_capacitance="0.155 uF")
-    # REFERENCE 7.3: 4.16 kV, 0.155 µF → own 3·I_C0 = 0.4210 A → floor 0.8421 A
+    # METHODS.md §7.3: 4.16 kV, 0.155 µF → own 3·I_C0 = 0.4210 A → floor 0.8421 A
     assert rec.derived["charging_current"].value == pytest.approx(0.4210, abs=5e-4)
     f = rec.function("50G")
     assert f.settings["pickup_current"].value == pytest.approx(40.0)
@@ -338,7 +338,7 @@ def test_50g_low_resistance():
 
 
 def test_50g_high_resistance_is_alarm_only():
-    # REFERENCE 7.2 [P][M]: on HRG systems choose between alarm and selective trip; we alarm
+    # METHODS.md §7.2 [P][M]: on HRG systems choose between alarm and selective trip; we alarm
     rec = study(grounding__method="high-resistance", grounding__fault_current_limit="5 A")
     f = rec.function("50G")
     assert f.settings["action"].value == "alarm"
@@ -346,13 +346,13 @@ def test_50g_high_resistance_is_alarm_only():
 
 
 def test_50g_pickup_below_charging_floor_fails():
-    # REFERENCE 7.2 [P]: pickup above twice the circuit's own 3·I_C0
+    # METHODS.md §7.2 [P]: pickup above twice the circuit's own 3·I_C0
     rec = study(grounding__circuit_capacitance="2 uF", **{"overrides__50G.pickup_current": "1 A"})
     assert any("below twice the circuit's own charging current" in m for m in messages(rec, "fail", "50G"))
 
 
 def test_27_below_starting_voltage():
-    # REFERENCE 13 [P]: 0.70–0.80 pu; must not trip a normal start
+    # METHODS.md §13 [P]: 0.70–0.80 pu; must not trip a normal start
     rec = study(supply__minimum_starting_voltage="0.78 pu")
     pu = value(rec, "27", "pickup_voltage") / 4160.0
     assert pu == pytest.approx(0.73) and pu < 0.78
@@ -383,7 +383,7 @@ def test_66_starts_default_and_mg10():
 
 
 def test_66_wait_from_cooling():
-    # REFERENCE 2.3 [D]: t_wait = τc·ln(θ/θ_allow) after a start from hot
+    # METHODS.md §2.3 [D]: t_wait = τc·ln(θ/θ_allow) after a start from hot
     rec = study(machine__cooling_time_constant="120 min")
     f = rec.function("66")
     heat = f.settings["start_heat_fraction"].value
@@ -399,7 +399,7 @@ def test_66_wait_from_cooling():
 
 
 def test_81u_only_with_stages():
-    # issue 3: 81U only when the motor takes part in load shedding; stages as entered (REFERENCE 8.2)
+    # issue 3: 81U only when the motor takes part in load shedding; stages as entered (METHODS.md §8.2)
     rec = study(supply__underfrequency_stages=[{"frequency": "58.8 Hz", "time_delay": "0.3 s"},
                                                {"frequency": "58.4 Hz", "time_delay": "0.2 s"}])
     f = rec.function("81U")
@@ -447,7 +447,7 @@ def test_ct_missing_class_warns():
 
 
 def test_unknown_override_is_refused():
-    # DESIGN.md: overrides name a function id and one of its settings
+    # DEVELOPERS.md: overrides name a function id and one of its settings
     with pytest.raises(InputError, match="has no setting"):
         study(**{"overrides__49.bogus": "1 A"})
 
@@ -462,23 +462,23 @@ def test_example_file_runs():
     assert case.machine.rated_output / HP == pytest.approx(1500.0)
 
 
-# ---------------------------------------------------------------------------------------------------- REFERENCE 3.4, 4.2
+# ---------------------------------------------------------------------------------------------------- METHODS.md §3.4, 4.2
 
 
 def test_stall_window_reference_values():
     from machines.protection.locked_rotor import delay_window, pickup_ceiling
-    # IEEE C37.96-style rule [P], check value REFERENCE 3.4: hot stall 10 s, ×1.1 / ×0.9, V = 1.0 → 5.952 … 9.000 s
+    # IEEE C37.96-style rule [P], check value METHODS.md §3.4: hot stall 10 s, ×1.1 / ×0.9, V = 1.0 → 5.952 … 9.000 s
     lo, hi = delay_window(5.411, 10.0)
     assert (lo, hi) == (pytest.approx(5.952, abs=5e-4), pytest.approx(9.000))
-    # check value REFERENCE 3.4: at V = 0.85 (8.478 s) → 9.326 > 9.000 s → no window → speed switch
+    # check value METHODS.md §3.4: at V = 0.85 (8.478 s) → 9.326 > 9.000 s → no window → speed switch
     lo, hi = delay_window(8.478, 10.0)
     assert lo == pytest.approx(9.326, abs=5e-4) and lo > hi
-    # check value REFERENCE 3.4: pickup upper bound 0.8 × 6.276 × 0.85 = 4.268 pu
+    # check value METHODS.md §3.4: pickup upper bound 0.8 × 6.276 × 0.85 = 4.268 pu
     assert pickup_ceiling(6.276, 0.85) == pytest.approx(4.268, abs=5e-4)
 
 
 @pytest.mark.parametrize("margin, primary, secondary", [
-    # common practice [M][P], check values REFERENCE 4.2: I_LR 437.2 A, CT 400/5
+    # common practice [M][P], check values METHODS.md §4.2: I_LR 437.2 A, CT 400/5
     (1.6, 699.5, 8.744), (1.8, 787.0, 9.837), (2.0, 874.4, 10.93),
 ])
 def test_50p_reference_values(margin, primary, secondary):
@@ -489,14 +489,14 @@ def test_50p_reference_values(margin, primary, secondary):
 
 def test_50p_default_margin_and_block_reference():
     from machines.protection.short_circuit import ASYMMETRY_MARGIN, block_threshold
-    # REFERENCE 4.1: 1.6–2.0 × I_LR with no delay; we take 1.8, above the full-offset first-cycle factor √3
+    # METHODS.md §4.1: 1.6–2.0 × I_LR with no delay; we take 1.8, above the full-offset first-cycle factor √3
     assert 1.6 <= ASYMMETRY_MARGIN <= 2.0 and ASYMMETRY_MARGIN > math.sqrt(3)
-    # check value REFERENCE 4.2: contactor interrupting 4 kA, 10 % margin → block trips above 3600 A
+    # check value METHODS.md §4.2: contactor interrupting 4 kA, 10 % margin → block trips above 3600 A
     assert block_threshold(4000.0) == pytest.approx(3600.0)
 
 
 def test_hot_start_lengthens_computed_time_constant():
-    # REFERENCE 2.2: a τ fitted to the hot stall trips a start that lasts about as long as the hot stall time;
+    # METHODS.md §2.2: a τ fitted to the hot stall trips a start that lasts about as long as the hot stall time;
     # the rule lengthens it and says so
     rec = study(load__inertia="400 kg*m^2")
     assert rec.derived["acceleration_time"].value > 14.0
@@ -505,7 +505,7 @@ def test_hot_start_lengthens_computed_time_constant():
 
 
 def test_50g_charging_floor_reference():
-    # REFERENCE 7.2 [P], check value REFERENCE 7.3: own 3·I_C0 = 0.4210 A → 50G pickup ≥ 0.8421 A (×2)
+    # METHODS.md §7.2 [P], check value METHODS.md §7.3: own 3·I_C0 = 0.4210 A → 50G pickup ≥ 0.8421 A (×2)
     from machines.protection.motor_earth_fault import CHARGING_MARGIN
     rec = study(grounding__circuit_capacitance="0.155 uF", **{"overrides__50G.pickup_current": "0.8 A"})
     assert CHARGING_MARGIN * rec.derived["charging_current"].value == pytest.approx(0.8421, abs=5e-4)
@@ -513,7 +513,7 @@ def test_50g_charging_floor_reference():
 
 
 def test_fused_contactor_block_override_above_rating_fails():
-    # REFERENCE 4.1 (UL 347 practice): the contactor must never be asked to break more than its rating
+    # METHODS.md §4.1 (UL 347 practice): the contactor must never be asked to break more than its rating
     rec = study(supply__starter="fused-contactor", supply__contactor_breaking_current="4 kA",
                 supply__fuse_rating="200 A", **{"overrides__50P.trip_block_current": "4200 A"})
     assert rec.function("50P").settings["trip_block_current"].source == "override"
@@ -530,7 +530,7 @@ def test_no_source_data():
 
 
 def test_27_without_vt_warns():
-    # REFERENCE 13: 27 needs a voltage input
+    # METHODS.md §13: 27 needs a voltage input
     rec = study(instruments__vt=None)
     s = rec.function("27").settings["pickup_voltage"]
     assert s.secondary is None

@@ -257,7 +257,7 @@ def test_cli_verify_tampered_exit_1(tmp_path, signed, monkeypatch, capsys):
 
 
 def test_building_a_sheet_does_not_import_pyhanko():
-    # pyHanko costs about half a second to import (STACK.md): only signing and verifying may load it
+    # pyHanko costs about half a second to import (measured): only signing and verifying may load it
     code = ("import sys; sys.path.insert(0, 'tests'); from test_sheet_records import motor_record; "
             "from reports.sheet import build_sheet; import reports.signing, reports.sheet_command; "
             "build_sheet(motor_record()); print('pyhanko' in sys.modules)")

@@ -1,4 +1,4 @@
-"""Frequency equations against REFERENCE 8.4: swing-equation RoCoF, the SFR model, band accumulation."""
+"""Frequency equations against METHODS.md §8.4: swing-equation RoCoF, the SFR model, band accumulation."""
 
 from __future__ import annotations
 
@@ -13,7 +13,7 @@ SFR = fq.SfrParameters(h=4.0, r=0.05, fh=0.3, tr=8.0, d=1.0, km=0.95)
 
 
 @pytest.mark.parametrize("f0, h, dp, rocof", [
-    # swing equation (Kundur), check values REFERENCE 8.4
+    # swing equation (Kundur), check values METHODS.md §8.4
     (60, 4, 0.1, -0.7500), (50, 5, 0.05, -0.2500), (60, 3, 0.2, -2.000),
 ])
 def test_initial_rocof(f0, h, dp, rocof):
@@ -21,7 +21,7 @@ def test_initial_rocof(f0, h, dp, rocof):
 
 
 def test_sfr_closed_form():
-    # Anderson & Mirheydar 1990 SFR model (value from memory), check values REFERENCE 8.4
+    # Anderson & Mirheydar 1990 SFR model (value from memory), check values METHODS.md §8.4
     assert fq.sfr_natural_frequency(SFR) == pytest.approx(0.5590, rel=5e-4)
     assert fq.sfr_damping_ratio(SFR) == pytest.approx(0.8609, rel=5e-4)
     assert fq.sfr_steady_state_deviation(SFR, -0.2) * 60 == pytest.approx(-0.6000, rel=5e-4)
@@ -45,7 +45,7 @@ def _integrate(p: fq.SfrParameters, pd: float, t_end: float, dt: float = 1e-3) -
 
 
 def test_sfr_against_numeric_integration():
-    # REFERENCE 8.4: numeric integration (dt = 1 ms) gives nadir −0.02167 pu at 2.368 s, final −0.01000 pu
+    # METHODS.md §8.4: numeric integration (dt = 1 ms) gives nadir −0.02167 pu at 2.368 s, final −0.01000 pu
     trace = _integrate(SFR, -0.2, 60.0)
     t_nadir, nadir = min(trace, key=lambda tw: tw[1])
     assert nadir == pytest.approx(-0.02167, rel=1e-3)
@@ -57,7 +57,7 @@ def test_sfr_against_numeric_integration():
 
 
 def test_sfr_initial_slope():
-    # REFERENCE 8.4: initial slope −1.500 Hz/s, the swing equation with ΔP = 0.2, H = 4 at 60 Hz
+    # METHODS.md §8.4: initial slope −1.500 Hz/s, the swing equation with ΔP = 0.2, H = 4 at 60 Hz
     dt = 1e-4
     slope = fq.sfr_deviation(SFR, -0.2, dt) / dt * 60
     assert slope == pytest.approx(-1.500, rel=2e-3)
@@ -68,7 +68,7 @@ BANDS = [FrequencyBand(56.0, 57.5, 0.0), FrequencyBand(57.5, 58.5, 600.0), Frequ
 
 
 def test_band_lookup_and_consumption():
-    # IEEE C37.106 accumulated-time bands; consumption = time in band / allowance (REFERENCE 8.1, derived)
+    # IEEE C37.106 accumulated-time bands; consumption = time in band / allowance (METHODS.md §8.1, derived)
     assert fq.band_containing(58.0, BANDS) == 1
     assert fq.band_containing(58.5, BANDS) == 2  # low edge belongs to the band
     assert fq.band_containing(60.0, BANDS) is None

@@ -1,4 +1,4 @@
-"""Generator capability equations against REFERENCE 9.6 and 10."""
+"""Generator capability equations against METHODS.md §9.6 and 10."""
 
 from __future__ import annotations
 
@@ -12,20 +12,20 @@ FACTOR = (5000 / 5) / (14400 / 120)
 
 
 def test_base_impedance_and_ratio():
-    # REFERENCE 9.6: 100 MVA, 13.8 kV → Z_b = 1.904 Ω; CTR 5000/5, VTR 14400/120 → factor 8.333
+    # METHODS.md §9.6: 100 MVA, 13.8 kV → Z_b = 1.904 Ω; CTR 5000/5, VTR 14400/120 → factor 8.333
     assert ZB == pytest.approx(1.904, rel=5e-4)
     assert FACTOR == pytest.approx(8.333, rel=5e-4)
 
 
 def test_loss_of_field_circles():
-    # IEEE C37.102 two-zone offset mho (value from memory), check values REFERENCE 9.6 (X'd = 0.25, X_d = 1.8)
+    # IEEE C37.102 two-zone offset mho (value from memory), check values METHODS.md §9.6 (X'd = 0.25, X_d = 1.8)
     offset = 0.25 / 2 * ZB
     assert offset == pytest.approx(0.2381, rel=5e-4)
     assert gc.secondary_ohms(offset, 1000, 120) == pytest.approx(1.984, rel=5e-4)
     assert gc.secondary_ohms(ZB, 1000, 120) == pytest.approx(15.87, rel=5e-4)
     assert 1.8 * ZB == pytest.approx(3.428, rel=5e-4)
     assert gc.secondary_ohms(1.8 * ZB, 1000, 120) == pytest.approx(28.57, rel=5e-4)
-    # REFERENCE 9.6: far reach zone 1 −17.85 Ω sec; zone 2 −30.55 Ω sec
+    # METHODS.md §9.6: far reach zone 1 −17.85 Ω sec; zone 2 −30.55 Ω sec
     for dia, reach in ((ZB, -17.85), (1.8 * ZB, -30.55)):
         (r, x), rad = gc.offset_mho_circle(offset * FACTOR, dia * FACTOR)
         assert r == 0.0
@@ -33,7 +33,7 @@ def test_loss_of_field_circles():
 
 
 @pytest.mark.parametrize("v, f, vhz", [
-    # REFERENCE 9.6
+    # METHODS.md §9.6
     (1.10, 0.95, 1.158), (1.05, 1.0, 1.050), (1.0, 0.9, 1.111),
 ])
 def test_volts_per_hertz(v, f, vhz):
@@ -41,12 +41,12 @@ def test_volts_per_hertz(v, f, vhz):
 
 
 def test_vhz_on_transformer_base():
-    # IEEE C37.102 common base, REFERENCE 9.6: 1.05 pu of 13.8 kV on a 13.2 kV GSU LV → 1.098 pu
+    # IEEE C37.102 common base, METHODS.md §9.6: 1.05 pu of 13.8 kV on a 13.2 kV GSU LV → 1.098 pu
     assert gc.rebase_voltage_pu(1.05, 13.8e3, 13.2e3) == pytest.approx(1.098, rel=5e-4)
 
 
 @pytest.mark.parametrize("v, pickup", [
-    # Gers & Holmes §5.8 restraint, REFERENCE 9.6: I_r = 4184 A, 150 % → 6276 / 5020 / 2510 / 1569 A
+    # Gers & Holmes §5.8 restraint, METHODS.md §9.6: I_r = 4184 A, 150 % → 6276 / 5020 / 2510 / 1569 A
     (1.0, 6276), (0.8, 5020), (0.4, 2510), (0.2, 1569),
 ])
 def test_restrained_pickup(v, pickup):
@@ -54,7 +54,7 @@ def test_restrained_pickup(v, pickup):
 
 
 def test_sustained_fault_current():
-    # REFERENCE 9.6: E/X_d = 1/1.8 = 0.5556 pu = 2324 A; the 0.4 pu pickup (2510 A) is above it
+    # METHODS.md §9.6: E/X_d = 1/1.8 = 0.5556 pu = 2324 A; the 0.4 pu pickup (2510 A) is above it
     i = gc.sustained_fault_current(4184.0, 1.8)
     assert i / 4184.0 == pytest.approx(0.5556, rel=5e-4)
     assert i == pytest.approx(2324, rel=5e-4)
@@ -62,7 +62,7 @@ def test_sustained_fault_current():
 
 
 @pytest.mark.parametrize("prime_mover, share, primary, secondary", [
-    # Blackburn & Domin motoring power (REFERENCE 9.1), pickup 50 %, check values REFERENCE 9.6 (85 MW, CTR 1000,
+    # Blackburn & Domin motoring power (METHODS.md §9.1), pickup 50 %, check values METHODS.md §9.6 (85 MW, CTR 1000,
     # VTR 120)
     ("steam-turbine", 0.02, 0.8500e6, 7.083), ("hydro", 0.01, 0.4250e6, 3.542),
     ("reciprocating-engine", 0.25, 10.62e6, 88.54), ("gas-turbine", 0.50, 21.25e6, 177.1),
@@ -75,7 +75,7 @@ def test_reverse_power(prime_mover, share, primary, secondary):
 
 
 @pytest.mark.parametrize("restraint, threshold", [
-    # REFERENCE 9.6: 87G pickup 0.3 A, slope 10 % → 0.3 / 0.5 / 1.0 / 2.0 A
+    # METHODS.md §9.6: 87G pickup 0.3 A, slope 10 % → 0.3 / 0.5 / 1.0 / 2.0 A
     (1, 0.3), (5, 0.5), (10, 1.0), (20, 2.0),
 ])
 def test_differential_threshold(restraint, threshold):
@@ -83,10 +83,10 @@ def test_differential_threshold(restraint, threshold):
 
 
 def test_armature_capability():
-    # IEEE C50.13 (value from memory), check values REFERENCE 10: 41.08 / 41.15 / 41.40 / 41.47 s
+    # IEEE C50.13 (value from memory), check values METHODS.md §10: 41.08 / 41.15 / 41.40 / 41.47 s
     got = [gc.armature_capability_product(i, t) for i, t in gc.C50_13_ARMATURE_POINTS]
     assert got == pytest.approx([41.08, 41.15, 41.40, 41.47], rel=5e-4)
-    # IEC 60034-1 (value from memory), REFERENCE 10: 1.5 × for 30 s → 37.50 s
+    # IEC 60034-1 (value from memory), METHODS.md §10: 1.5 × for 30 s → 37.50 s
     assert gc.armature_capability_constant("IEC") == pytest.approx(37.50)
     assert gc.armature_capability_time(1.0, 41.0) == float("inf")
 

@@ -1,4 +1,4 @@
-"""Thermal replica equations (IEC 60255-149) against REFERENCE 2.5 check values."""
+"""Thermal replica equations (IEC 60255-149) against METHODS.md §2.5 check values."""
 
 from __future__ import annotations
 
@@ -16,15 +16,15 @@ TAU = 30 * 60.0
 
 
 @pytest.mark.parametrize("current, prior, expected", [
-    # IEC 60255-149, check value REFERENCE 2.5 (τ = 30 min, k·IB = 1.05, I = 1.5, cold)
+    # IEC 60255-149, check value METHODS.md §2.5 (τ = 30 min, k·IB = 1.05, I = 1.5, cold)
     (1.5, 0.0, 1212.0),
-    # IEC 60255-149, check value REFERENCE 2.5 (hot, Ip = 0.9)
+    # IEC 60255-149, check value METHODS.md §2.5 (hot, Ip = 0.9)
     (1.5, 0.9, 408.7),
-    # IEC 60255-149, check value REFERENCE 2.5 (hot, Ip = 1.0)
+    # IEC 60255-149, check value METHODS.md §2.5 (hot, Ip = 1.0)
     (1.5, 1.0, 154.0),
-    # IEC 60255-149, check value REFERENCE 2.5 (I = 2.0 cold)
+    # IEC 60255-149, check value METHODS.md §2.5 (I = 2.0 cold)
     (2.0, 0.0, 580.4),
-    # IEC 60255-149, check value REFERENCE 2.5 (I = 2.0 hot, Ip = 1.0)
+    # IEC 60255-149, check value METHODS.md §2.5 (I = 2.0 hot, Ip = 1.0)
     (2.0, 1.0, 62.58),
 ])
 def test_operate_time(current, prior, expected):
@@ -42,7 +42,7 @@ def test_operate_time_edges(current, prior, expected, why):
 
 
 @pytest.mark.parametrize("current, expected", [
-    # IEC 60255-149, check value REFERENCE 2.5: θ∞ at 0.8 / 1.0 / 1.05 pu with k·IB = 1.05
+    # IEC 60255-149, check value METHODS.md §2.5: θ∞ at 0.8 / 1.0 / 1.05 pu with k·IB = 1.05
     (0.8, 0.5805), (1.0, 0.9070), (1.05, 1.0),
 ])
 def test_steady_state_level(current, expected):
@@ -50,20 +50,20 @@ def test_steady_state_level(current, expected):
 
 
 def test_fit_to_cold_stall():
-    # REFERENCE 2.2 [D], check value REFERENCE 2.5: t_sc = 15 s at I_LR = 6, k = 1.05 → τ = 482.3 s
+    # METHODS.md §2.2 [D], check value METHODS.md §2.5: t_sc = 15 s at I_LR = 6, k = 1.05 → τ = 482.3 s
     tau = time_constant_from_trip_time(15.0, 6.0, 1.05)
     assert tau == pytest.approx(482.3, abs=0.05)
-    # check value REFERENCE 2.5: that τ trips from hot (Ip = 1.0) at 6 pu in 1.414 s
+    # check value METHODS.md §2.5: that τ trips from hot (Ip = 1.0) at 6 pu in 1.414 s
     assert thermal_operate_time(6.0, 1.05, tau, 1.0) == pytest.approx(1.414, abs=5e-4)
-    # check value REFERENCE 2.5: adiabatic approximation τ·k²/I_LR² gives 14.77 s
+    # check value METHODS.md §2.5: adiabatic approximation τ·k²/I_LR² gives 14.77 s
     assert tau * 1.05 ** 2 / 36.0 == pytest.approx(14.77, abs=5e-3)
 
 
 def test_fit_to_hot_stall():
-    # REFERENCE 2.2 [D], check value REFERENCE 2.5: t_sh = 10 s (Ip = 1.0) → τ = 3410 s (56.83 min)
+    # METHODS.md §2.2 [D], check value METHODS.md §2.5: t_sh = 10 s (Ip = 1.0) → τ = 3410 s (56.83 min)
     tau = time_constant_from_trip_time(10.0, 6.0, 1.05, 1.0)
     assert tau / 60 == pytest.approx(56.83, abs=5e-3)
-    # check value REFERENCE 2.5: that τ trips from cold at 6 pu in 106.1 s
+    # check value METHODS.md §2.5: that τ trips from cold at 6 pu in 106.1 s
     assert thermal_operate_time(6.0, 1.05, tau) == pytest.approx(106.1, abs=0.05)
 
 
@@ -74,27 +74,27 @@ def test_fit_rejects_impossible_point():
 
 
 def test_start_capacity():
-    # REFERENCE 2.3 [D], check value REFERENCE 2.5: 33.68 % exact, 33.33 % approximation
+    # METHODS.md §2.3 [D], check value METHODS.md §2.5: 33.68 % exact, 33.33 % approximation
     assert start_capacity(5.0, 15.0, 482.3) == pytest.approx(0.3368, abs=5e-5)
     assert 5.0 / 15.0 == pytest.approx(0.3333, abs=5e-5)
 
 
 def test_restart_wait_and_cooling():
-    # REFERENCE 2.3 [D], check value REFERENCE 2.5: θ = 0.6667, allow ≤ 0.6333 (m = 1.1), τc = 60 min → 3.078 min
+    # METHODS.md §2.3 [D], check value METHODS.md §2.5: θ = 0.6667, allow ≤ 0.6333 (m = 1.1), τc = 60 min → 3.078 min
     assert restart_wait(2 / 3, 1 / 3, 3600.0, 1.1) / 60 == pytest.approx(3.078, abs=5e-4)
-    # check value REFERENCE 2.5: cooling 90 % → 40 % at τc = 60 min takes 48.66 min
+    # check value METHODS.md §2.5: cooling 90 % → 40 % at τc = 60 min takes 48.66 min
     assert cooling_time(0.9, 0.4, 3600.0) / 60 == pytest.approx(48.66, abs=5e-3)
     # the same through the level equation with zero current (IEC 60255-149 model)
     assert thermal_level(0.0, 1.05, 3600.0, cooling_time(0.9, 0.4, 3600.0), 0.9) == pytest.approx(0.4)
 
 
 def test_heat_stored_at_rated_load():
-    # REFERENCE 2.2 [P]: 10 s hot / 15 s cold → 33.33 % used at full load
+    # METHODS.md §2.2 [P]: 10 s hot / 15 s cold → 33.33 % used at full load
     assert heat_stored_at_rated_load(10.0, 15.0) == pytest.approx(0.3333, abs=5e-5)
 
 
 def test_numeric_ode_matches_analytic():
-    # REFERENCE 2.5: numeric ODE vs analytic, I = 1.5, τ = 30 min → 1212 s both
+    # METHODS.md §2.5: numeric ODE vs analytic, I = 1.5, τ = 30 min → 1212 s both
     t = np.linspace(0.0, 1300.0, 13001)
     lvl = thermal_level_profile(t, np.full(t.size, 1.5), 1.05, TAU)
     trip = t[np.argmax(lvl >= 1.0)]

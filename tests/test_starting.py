@@ -1,4 +1,4 @@
-"""Motor starting: acceleration by integration, torque/current models, starting voltage (REFERENCE 3.3, 3.4)."""
+"""Motor starting: acceleration by integration, torque/current models, starting voltage (METHODS.md §3.3, 3.4)."""
 
 from __future__ import annotations
 
@@ -12,7 +12,7 @@ from machines.starting import (
     motor_current, motor_torque, starting_voltage, study_start,
 )
 
-# REFERENCE 3.4 worked case: 1000 kW, 4-pole 60 Hz, rated speed 0.99 pu, J = 200 kg·m², maker's torque table
+# METHODS.md §3.4 worked case: 1000 kW, 4-pole 60 Hz, rated speed 0.99 pu, J = 200 kg·m², maker's torque table
 SPEEDS = [0, .1, .2, .3, .4, .5, .6, .7, .8, .85, .9, .95, .99]
 TORQUES = [1.5, 1.45, 1.4, 1.38, 1.4, 1.45, 1.55, 1.7, 1.95, 2.1, 2.2, 1.7, 1.0]
 WS = 4 * math.pi * 60 / 4
@@ -26,12 +26,12 @@ def reference_case(v: float, end: float = 0.95, points: int = 4001):
 
 
 def test_rated_torque():
-    # REFERENCE 3.4: T_rated = 5359 N·m
+    # METHODS.md §3.4: T_rated = 5359 N·m
     assert T_RATED == pytest.approx(5359, abs=0.5)
 
 
 @pytest.mark.parametrize("v, expected", [
-    # Newton's law integrated over speed, check values REFERENCE 3.4 (time 0 → 0.95 pu speed)
+    # Newton's law integrated over speed, check values METHODS.md §3.4 (time 0 → 0.95 pu speed)
     (1.0, 5.411), (0.9, 7.180), (0.85, 8.478), (0.8, 10.27),
 ])
 def test_reference_acceleration_times(v, expected):
@@ -41,22 +41,22 @@ def test_reference_acceleration_times(v, expected):
 
 
 def test_reference_does_not_accelerate_at_07():
-    # REFERENCE 3.4: at V = 0.7 the motor does not accelerate to 0.95 pu
+    # METHODS.md §3.4: at V = 0.7 the motor does not accelerate to 0.95 pu
     n, acc = reference_case(0.7)
     assert first_crossing(n, acc) is not None and first_crossing(n, acc) < 0.95
 
 
 def test_reference_equilibrium_at_08():
-    # REFERENCE 3.4: at V = 0.8 the equilibrium speed is 0.9689 pu (cannot reach 0.97)
+    # METHODS.md §3.4: at V = 0.8 the equilibrium speed is 0.9689 pu (cannot reach 0.97)
     n, acc = reference_case(0.8, end=0.99, points=99001)
     stable = n > 0.9
     assert first_crossing(n[stable], acc[stable]) == pytest.approx(0.9689, abs=5e-5)
 
 
 def test_wk2_formula_and_si_cross_check():
-    # REFERENCE 3.3/3.4: WK² 1000 lb·ft², ΔN 1780 rpm, T_acc 500 lb·ft → 11.56 s (US formula with 308)
+    # METHODS.md §3.3/3.4: WK² 1000 lb·ft², ΔN 1780 rpm, T_acc 500 lb·ft → 11.56 s (US formula with 308)
     assert acceleration_time_wk2(1000.0, 1780.0, 500.0) == pytest.approx(11.56, abs=5e-3)
-    # REFERENCE 3.4: SI cross-check with J = 42.14 kg·m² gives 11.59 s (1 lb·ft = 1.35582 N·m, NIST SP 811)
+    # METHODS.md §3.4: SI cross-check with J = 42.14 kg·m² gives 11.59 s (1 lb·ft = 1.35582 N·m, NIST SP 811)
     j = 1000.0 * LB_FT2
     assert j == pytest.approx(42.14, abs=5e-3)
     t = j * (1780.0 * 2 * math.pi / 60) / (500.0 * 1.3558179)
@@ -122,7 +122,7 @@ COMMON = dict(locked_rotor_current=600.0, rated_current=100.0, locked_rotor_torq
 
 
 def test_start_slower_at_lower_voltage_and_current_scales():
-    # torque ∝ V², current ∝ V (REFERENCE 3.3)
+    # torque ∝ V², current ∝ V (METHODS.md §3.3)
     hi, lo = study_start(voltage=1.0, **COMMON), study_start(voltage=0.85, **COMMON)
     assert hi.accelerates and lo.accelerates and lo.acceleration_time > hi.acceleration_time
     assert lo.currents[0] == pytest.approx(0.85 * 600.0) and hi.currents[0] == pytest.approx(600.0)
@@ -131,19 +131,19 @@ def test_start_slower_at_lower_voltage_and_current_scales():
 
 
 def test_does_not_accelerate():
-    # REFERENCE 3.3: failure to accelerate when T_m·V² ≤ T_L below the end speed (here at standstill already)
+    # METHODS.md §3.3: failure to accelerate when T_m·V² ≤ T_L below the end speed (here at standstill already)
     s = study_start(voltage=0.6, **{**COMMON, "load_profile": "constant", "load_torque_rated": 1.0})
     assert not s.accelerates and math.isinf(s.acceleration_time) and s.stall_speed == 0.0
     assert s.time_above(100.0) == math.inf
 
 
 @pytest.mark.parametrize("v, table_time", [
-    # check values REFERENCE 3.4 (maker-style torque table); the synthetic curve uses only its end points
+    # check values METHODS.md §3.4 (maker-style torque table); the synthetic curve uses only its end points
     (1.0, 5.411), (0.9, 7.180), (0.85, 8.478), (0.8, 10.27),
 ])
 def test_synthetic_curve_against_reference_table(v, table_time):
     # model in machines.starting [D]: from T_LR = 1.5, T_b = 2.2, s_r = 0.01 alone the acceleration time is
-    # 0–3 % longer than with REFERENCE 3.4's full table (on the safe side for the 51LR window)
+    # 0–3 % longer than with METHODS.md §3.4's full table (on the safe side for the 51LR window)
     n = np.linspace(0.0, 0.95, 4001)
     acc = motor_torque(n, 1.5, 2.2, 0.01) * v * v - (0.1 + 0.81 * (n / 0.99) ** 2)
     t = acceleration_times(n, acc, 200.0, WS, T_RATED)[-1]

@@ -1,6 +1,6 @@
 """46 current unbalance / negative sequence of an induction motor.
 
-Rule (REFERENCE 5.3, 5.4 [P]): alarm at I2 = 10 % of FLC for 10 s, trip at 20 % for 4 s (longer than external
+Rule (METHODS.md §5.3, 5.4 [P]): alarm at I2 = 10 % of FLC for 10 s, trip at 20 % for 4 s (longer than external
 unbalanced faults take to clear), single-phasing stage at I2/I1 ≥ 50 % for 2 s. The rotor heating weight
 K = T_LR / (s_FL · I_LR²) (rotor resistance at 2f over that at rated slip) biases the replica,
 I_eq² = I1² + K·I2², and the adiabatic I2²t limit K2 = I_LR²·t_sc bounds the definite trip. The NEMA MG 1
@@ -22,8 +22,8 @@ FID = "46"
 ALARM = 0.10  #: alarm I2 [pu of FLC] [P]
 TRIP = 0.20  #: trip I2 [pu of FLC] [P]
 ALARM_DELAY = 10.0  #: [s] [P]
-TRIP_DELAY = 4.0  #: [s] [P] (REFERENCE 5.4: 2–10 s)
-SINGLE_PHASING_RATIO = 0.5  #: I2/I1 [-] [P] (REFERENCE 5.4: 40–50 %)
+TRIP_DELAY = 4.0  #: [s] [P] (METHODS.md §5.4: 2–10 s)
+SINGLE_PHASING_RATIO = 0.5  #: I2/I1 [-] [P] (METHODS.md §5.4: 40–50 %)
 SINGLE_PHASING_DELAY = 2.0  #: [s] [P]
 MIN_EXTERNAL_CLEARING = 1.0  #: delays shorter than this risk tripping on external unbalanced faults [s] [P]
 

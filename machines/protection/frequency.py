@@ -1,6 +1,6 @@
 """81U / 81O frequency protection of a generator, from the maker's off-frequency bands.
 
-The guide (IEEE C37.106; REFERENCE 8.1, 8.2): turbine limits are bands with a time allowance accumulated over the
+The guide (IEEE C37.106; METHODS.md §8.1, 8.2): turbine limits are bands with a time allowance accumulated over the
 turbine's life. One trip stage sits at the edge of each restricted band, with a delay that lets a single event use
 only a small fraction of the band's allowance; underfrequency stages sit below the system's lowest load-shedding
 stage and time out after the shedding, so that the shedding programme acts first. Without maker bands a steam or

@@ -1,6 +1,6 @@
 """87G generator percentage differential, with the IEEE C37.110 check of the differential CTs.
 
-REFERENCE 9.5 (common practice): single slope about 10 %, minimum pickup 0.1–0.3 A on 5 A CTs (here 6 % of the CT
+METHODS.md §9.5 (common practice): single slope about 10 %, minimum pickup 0.1–0.3 A on 5 A CTs (here 6 % of the CT
 secondary rating, 0.3 A on 5 A), unrestrained stage at 8 × rated current or more. For an external fault the
 CTs at both ends carry the generator's own contribution; if one saturates, the false differential current can
 operate the element, so the differential CTs are checked at that current with the C37.110 criterion.
@@ -15,9 +15,9 @@ from machines.standards.ct_saturation import (SATURATION_LIMIT, c37110_saturatio
 from machines.standards.generator_capability import differential_operate_threshold
 
 FID = "87G"
-MIN_PICKUP_FRACTION = 0.06  #: of the CT secondary rating (0.3 A on 5 A; REFERENCE 9.5: 0.1–0.3 A)
-SLOPE = 0.10  #: REFERENCE 9.5 (common practice)
-UNRESTRAINED = 8.0  #: [× rated current] REFERENCE 9.5: ≥ 8–10 pu (common practice)
+MIN_PICKUP_FRACTION = 0.06  #: of the CT secondary rating (0.3 A on 5 A; METHODS.md §9.5: 0.1–0.3 A)
+SLOPE = 0.10  #: METHODS.md §9.5 (common practice)
+UNRESTRAINED = 8.0  #: [× rated current] METHODS.md §9.5: ≥ 8–10 pu (common practice)
 EXTERNAL_FAULT_EMF = 1.1  #: [pu] subtransient EMF of a loaded machine for the largest through fault (common practice)
 OPERATE_TIME = 0.03  #: [s] typical operate time of a numerical differential (maker's data govern)
 

@@ -1,13 +1,13 @@
 """51LR locked-rotor / stall protection and the running jam stage.
 
-Rule (REFERENCE 3.2, IEEE C37.96-style guidance [M][P]):
+Rule (METHODS.md §3.2, IEEE C37.96-style guidance [M][P]):
 - Pickup above the highest running overload (≥ 2 × FLC and above the 49 pickup) and at most 0.8 × the locked-rotor
   current at the minimum starting voltage (lower bound of the code range, for sensitivity); 2.5 × FLC when the window
   allows.
 - Delay longer than the acceleration time at minimum voltage × 1.1 and shorter than the hot safe stall time × 0.9.
   With no such window a zero-speed switch is needed: the switch supervises a short locked-rotor timer and the long
   acceleration is left to the thermal replica (and the maker's acceleration thermal-limit curve, IEEE Std 620).
-- Running jam stage, armed once the start is complete: 2 × FLC for 2 s (REFERENCE 3.2: 1.5–2.5 × FLC, 1–5 s [P]).
+- Running jam stage, armed once the start is complete: 2 × FLC for 2 s (METHODS.md §3.2: 1.5–2.5 × FLC, 1–5 s [P]).
 """
 
 from __future__ import annotations
@@ -19,11 +19,11 @@ from machines.protection.motor_basis import basis_of, chosen
 from machines.record import Check, FunctionSettings, Setting
 
 FID = "51LR"
-PICKUP_MIN = 2.0  #: lowest pickup [× FLC] (REFERENCE 3.2: ≥ 1.5–2) [P]
+PICKUP_MIN = 2.0  #: lowest pickup [× FLC] (METHODS.md §3.2: ≥ 1.5–2) [P]
 PICKUP_TARGET = 2.5  #: preferred pickup [× FLC] [P]
-PICKUP_REACH = 0.8  #: pickup ≤ this × I_LR at minimum voltage [-] (REFERENCE 3.2) [P]
-ACCEL_MARGIN = 1.1  #: delay ≥ this × acceleration time [-] (REFERENCE 3.2: 1.1–1.2) [P]
-STALL_MARGIN = 0.9  #: delay ≤ this × hot safe stall time [-] (REFERENCE 3.2: 0.8–0.9) [P]
+PICKUP_REACH = 0.8  #: pickup ≤ this × I_LR at minimum voltage [-] (METHODS.md §3.2) [P]
+ACCEL_MARGIN = 1.1  #: delay ≥ this × acceleration time [-] (METHODS.md §3.2: 1.1–1.2) [P]
+STALL_MARGIN = 0.9  #: delay ≤ this × hot safe stall time [-] (METHODS.md §3.2: 0.8–0.9) [P]
 SUPERVISED_FRACTION = 0.5  #: speed-switch-supervised delay as a fraction of the hot stall time [-] [P]
 SUPERVISED_MIN = 2.0  #: shortest supervised delay, time for the speed switch to open once turning [s] [P]
 JAM_PICKUP = 2.0  #: running jam pickup [× FLC] [P]
@@ -35,7 +35,7 @@ def delay_window(acceleration_time: float, hot_stall_time: float) -> tuple[float
 
     Examples
     --------
-    >>> [round(x, 3) for x in delay_window(5.411, 10.0)]   # REFERENCE 3.4: 5.952 … 9.000 s
+    >>> [round(x, 3) for x in delay_window(5.411, 10.0)]   # METHODS.md §3.4: 5.952 … 9.000 s
     [5.952, 9.0]
     """
     return ACCEL_MARGIN * acceleration_time, STALL_MARGIN * hot_stall_time
@@ -46,7 +46,7 @@ def pickup_ceiling(locked_rotor_current: float, minimum_voltage: float) -> float
 
     Examples
     --------
-    >>> round(pickup_ceiling(6.276, 0.85), 3)   # REFERENCE 3.4: 4.268 pu
+    >>> round(pickup_ceiling(6.276, 0.85), 3)   # METHODS.md §3.4: 4.268 pu
     4.268
     """
     return PICKUP_REACH * locked_rotor_current * minimum_voltage

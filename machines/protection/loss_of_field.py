@@ -1,6 +1,6 @@
 """40 loss-of-field protection: two-zone negative-offset mho (IEEE C37.102 approach).
 
-REFERENCE 9.2: both circles are offset down the −X axis by X'd/2; zone 1 has a diameter of 1.0 pu of the machine's
+METHODS.md §9.2: both circles are offset down the −X axis by X'd/2; zone 1 has a diameter of 1.0 pu of the machine's
 base impedance and a short delay (loss of field from heavy load); zone 2 a diameter of X_d and a longer delay that
 rides through stable power swings. Relay-side ohms are Z_sec = Z_pri · CTR / VTR.
 """
@@ -14,9 +14,9 @@ from machines.record import Check, FunctionSettings, Setting
 from machines.standards import generator_capability as cap
 
 FID = "40"
-ZONE1_DIAMETER = 1.0  #: [pu of Z_b] REFERENCE 9.2 (value from memory)
-ZONE1_DELAY = 0.1  #: [s] REFERENCE 9.2 (value from memory)
-ZONE2_DELAY = 0.5  #: [s] REFERENCE 9.2: 0.5–0.6 s (value from memory)
+ZONE1_DIAMETER = 1.0  #: [pu of Z_b] METHODS.md §9.2 (value from memory)
+ZONE1_DELAY = 0.1  #: [s] METHODS.md §9.2 (value from memory)
+ZONE2_DELAY = 0.5  #: [s] METHODS.md §9.2: 0.5–0.6 s (value from memory)
 PROBE = 0.05  #: test points 5 % inside and outside the far reach
 
 

@@ -4,7 +4,7 @@ Size threshold: the usual guidance recommends differential protection for large 
 1000 hp, where an internal fault is costly and the 50P pickup (above 1.6–2 × I_LR) leaves faults near the star point
 unseen [value from memory]. It is also recommended whatever the size when 50P is in service and its sensitivity
 ratio is below 2 (on a fused contactor the fuses clear short circuits).
-Settings (IEEE C37.96-1988 §4.2.17, REFERENCE 9.5): percentage differential, 10 % slope, minimum pickup 15 % of
+Settings (IEEE C37.96-1988 §4.2.17, METHODS.md §9.5): percentage differential, 10 % slope, minimum pickup 15 % of
 FLC (10–20 %); self-balancing (core-balance) schemes are set like 50G.
 """
 

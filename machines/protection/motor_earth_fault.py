@@ -1,6 +1,6 @@
 """50G earth fault of a motor circuit, through a core-balance CT.
 
-Rule (REFERENCE 7.2 [P][M]):
+Rule (METHODS.md §7.2 [P][M]):
 - The pickup stays above twice the motor circuit's own capacitive current 3·I_C0 (which flows through the
   core-balance CT for an earth fault elsewhere) and at most 10–20 % of the available earth-fault current.
 - Low-resistance grounding: 10 % of the resistor's let-through current, 0.1 s. Solid grounding: 20 % of FLC, 0.1 s.
@@ -17,11 +17,11 @@ from machines.record import Check, FunctionSettings, Setting
 from machines.standards.grounding import charging_current
 
 FID = "50G"
-CHARGING_MARGIN = 2.0  #: pickup ≥ this × own 3·I_C0 [-] (REFERENCE 7.2: 2–3) [P]
-LRG_FRACTION = 0.10  #: pickup = this × resistor current on LRG systems [-] (REFERENCE 7.2: 10–20 %) [P]
+CHARGING_MARGIN = 2.0  #: pickup ≥ this × own 3·I_C0 [-] (METHODS.md §7.2: 2–3) [P]
+LRG_FRACTION = 0.10  #: pickup = this × resistor current on LRG systems [-] (METHODS.md §7.2: 10–20 %) [P]
 LRG_MAX_FRACTION = 0.20  #: pickup above this × fault current covers too little winding [-] [P]
 SOLID_FRACTION_FLC = 0.20  #: pickup on solidly grounded supplies [× FLC] [P]
-TRIP_DELAY = 0.1  #: [s] (REFERENCE 7.2: 0.1–0.5 s) [P]
+TRIP_DELAY = 0.1  #: [s] (METHODS.md §7.2: 0.1–0.5 s) [P]
 ALARM_DELAY = 1.0  #: [s] [P]
 CT_LOW_FRACTION = 0.05  #: pickups below this × CT primary need a check of relay range and CT accuracy [-] [P]
 ALARM_METHODS = ("high-resistance", "distribution-transformer", "ungrounded")

@@ -2,7 +2,7 @@
 
 The stages are the system's load-shedding plan, entered by the engineer; the rule copies them and checks that each
 is below the rated frequency, that lower stages act no slower than higher ones, and that delays ride through
-measurement transients (≥ 0.1 s [P]; REFERENCE 8.2).
+measurement transients (≥ 0.1 s [P]; METHODS.md §8.2).
 """
 
 from __future__ import annotations

@@ -1,6 +1,6 @@
 """27 undervoltage of a motor.
 
-Rule (REFERENCE 13 [P][M]): 0.75 pu of the motor's rated voltage for 2 s, riding through faults elsewhere and letting
+Rule (METHODS.md §13 [P][M]): 0.75 pu of the motor's rated voltage for 2 s, riding through faults elsewhere and letting
 the motor reaccelerate; coordinate with bus transfer. The element must not trip a normal start: when the minimum
 starting voltage is near the pickup the pickup drops to 0.05 pu below it (not under 0.65 pu), and where that is not
 enough 27 is blocked while the motor starts (``blocked_during_start``).
@@ -13,10 +13,10 @@ from machines.protection.motor_basis import basis_of
 from machines.record import Check, FunctionSettings, Setting
 
 FID = "27"
-PICKUP = 0.75  #: [pu of rated voltage] (REFERENCE 13: 0.70–0.80) [P]
+PICKUP = 0.75  #: [pu of rated voltage] (METHODS.md §13: 0.70–0.80) [P]
 PICKUP_FLOOR = 0.65  #: lowest automatic pickup [pu] [P]
 START_MARGIN = 0.05  #: pickup at least this below the minimum starting voltage [pu] [P]
-DELAY = 2.0  #: [s] (REFERENCE 13: 1–3 s) [P]
+DELAY = 2.0  #: [s] (METHODS.md §13: 1–3 s) [P]
 
 
 def settings(ctx: StudyContext) -> FunctionSettings:

@@ -1,6 +1,6 @@
 """46 negative-sequence (unbalanced-load) protection of a generator.
 
-The guide (REFERENCE 6.3): an alarm below the machine's continuous I2 rating; an inverse trip stage t = K_set/I2²
+The guide (METHODS.md §6.3): an alarm below the machine's continuous I2 rating; an inverse trip stage t = K_set/I2²
 picked up at the continuous rating, with K_set a little below the machine's K so that relay error cannot let the
 rotor exceed its I2²t capability, a minimum time that rides through external faults cleared by other protection and
 a maximum time for long, light unbalance. The machine's continuous I2 and K are the maker's when the file gives them,
@@ -14,11 +14,11 @@ from machines.record import Check, FunctionSettings, Setting
 from machines.standards.negative_sequence import negative_sequence_trip_time, phase_phase_fault_negative_sequence
 
 FID = "46"
-ALARM_FRACTION = 0.7  #: alarm at 70 % of the continuous rating (REFERENCE 6.3: 50–90 %; common practice)
+ALARM_FRACTION = 0.7  #: alarm at 70 % of the continuous rating (METHODS.md §6.3: 50–90 %; common practice)
 ALARM_DELAY = 10.0  #: [s] common practice, no published source
-K_FRACTION = 0.9  #: K_set = 0.9·K (REFERENCE 6.3: 0.8–1.0 × K; common practice)
-MINIMUM_TIME = 0.5  #: [s] REFERENCE 6.3: 0.25–1 s (common practice)
-MAXIMUM_TIME = 1000.0  #: [s] REFERENCE 6.3: 600–1000 s (common practice)
+K_FRACTION = 0.9  #: K_set = 0.9·K (METHODS.md §6.3: 0.8–1.0 × K; common practice)
+MINIMUM_TIME = 0.5  #: [s] METHODS.md §6.3: 0.25–1 s (common practice)
+MAXIMUM_TIME = 1000.0  #: [s] METHODS.md §6.3: 600–1000 s (common practice)
 TEST_MULTIPLES = (2.0, 4.0, 8.0)  #: multiples of the pickup for the timing tests
 
 

@@ -1,6 +1,6 @@
 """24 overexcitation (volts per hertz) protection of a generator and its step-up transformer.
 
-The guide (REFERENCE 9.3): the generator's limit (IEEE C50.13: 1.05 pu on its base) and the step-up transformer's
+The guide (METHODS.md §9.3): the generator's limit (IEEE C50.13: 1.05 pu on its base) and the step-up transformer's
 (IEEE C57.12.00: 1.05 pu at rated load on its LV base) are moved to a common base, the generator's, and the lower
 governs. An alarm at the governing limit; a first trip stage about 5 % above it with a delay of about 45 s and a
 second, faster stage about 13 % above it (1.10 and 1.18 pu for a 1.05 pu limit).
@@ -13,11 +13,11 @@ from machines.record import Check, FunctionSettings, Setting
 from machines.standards.generator_capability import rebase_voltage_pu, volts_per_hertz
 
 FID = "24"
-TRIP1_STEP = 0.05  #: trip stage 1 at limit + 0.05 pu (REFERENCE 9.3: ≈ 1.10 pu; value from memory)
-TRIP2_STEP = 0.13  #: trip stage 2 at limit + 0.13 pu (REFERENCE 9.3: ≈ 1.18–1.20 pu; value from memory)
-ALARM_DELAY = 45.0  #: [s] REFERENCE 9.3: 45–60 s (value from memory)
-TRIP1_DELAY = 45.0  #: [s] REFERENCE 9.3: 45–60 s (value from memory)
-TRIP2_DELAY = 2.0  #: [s] REFERENCE 9.3: 2–6 s (value from memory)
+TRIP1_STEP = 0.05  #: trip stage 1 at limit + 0.05 pu (METHODS.md §9.3: ≈ 1.10 pu; value from memory)
+TRIP2_STEP = 0.13  #: trip stage 2 at limit + 0.13 pu (METHODS.md §9.3: ≈ 1.18–1.20 pu; value from memory)
+ALARM_DELAY = 45.0  #: [s] METHODS.md §9.3: 45–60 s (value from memory)
+TRIP1_DELAY = 45.0  #: [s] METHODS.md §9.3: 45–60 s (value from memory)
+TRIP2_DELAY = 2.0  #: [s] METHODS.md §9.3: 2–6 s (value from memory)
 NORMAL_VOLTAGE = 1.05  #: IEEE C50.13 and IEC 60034-1 zone A: rated output within ±5 % voltage
 
 

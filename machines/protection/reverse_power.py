@@ -1,6 +1,6 @@
 """32 reverse-power (anti-motoring) protection of a generator.
 
-The guide (REFERENCE 9.1): the power that motors the unit at synchronous speed depends on the prime mover (the
+The guide (METHODS.md §9.1): the power that motors the unit at synchronous speed depends on the prime mover (the
 maker's figure when the file gives it, else the handbook range); the pickup is a stated fraction of it; a long delay
 rides through power swings and synchronising when the element acts alone, a short one when it is supervised by a
 turbine-valves-closed (gate or fuel) signal for sequential tripping. The relay-side pickup is three-phase secondary
@@ -16,9 +16,9 @@ from machines.record import Check, FunctionSettings, Setting
 from machines.standards.generator_capability import motoring_power_fraction, secondary_power
 
 FID = "32"
-PICKUP_FRACTION = 0.5  #: pickup at 50 % of the motoring power (REFERENCE 9.1: 30–50 %; common practice)
-UNSUPERVISED_DELAY = 10.0  #: [s] REFERENCE 9.1: 5–30 s (common practice)
-SUPERVISED_DELAY = 2.0  #: [s] REFERENCE 9.1: ≈ 1–3 s with valves-closed supervision (common practice)
+PICKUP_FRACTION = 0.5  #: pickup at 50 % of the motoring power (METHODS.md §9.1: 30–50 %; common practice)
+UNSUPERVISED_DELAY = 10.0  #: [s] METHODS.md §9.1: 5–30 s (common practice)
+SUPERVISED_DELAY = 2.0  #: [s] METHODS.md §9.1: ≈ 1–3 s with valves-closed supervision (common practice)
 RANGE_OK = 0.01  #: pickup ≥ 1 % of the relay's nominal three-phase power: ordinary accuracy (common practice)
 RANGE_FAIL = 0.001  #: below 0.1 %: beyond what the measuring chain resolves (common practice)
 

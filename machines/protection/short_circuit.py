@@ -1,6 +1,6 @@
 """50P instantaneous phase overcurrent (short circuit) of a motor, and the fused-contactor case.
 
-Rule (REFERENCE 4.1):
+Rule (METHODS.md §4.1):
 - Pickup 1.8 × the symmetrical locked-rotor current (upper bound of the code range): the first-cycle rms of a fully
   offset starting current is up to √3 = 1.73 × its symmetrical value (IEC 60034-12 note: peak 1.8–2.8 ×), so 1.8
   keeps the element quiet with no intentional delay (guidance 1.6–2.0 × [M][P]).
@@ -20,10 +20,10 @@ from machines.standards.fault_current import (
 )
 
 FID = "50P"
-ASYMMETRY_MARGIN = 1.8  #: pickup / symmetrical I_LR [-] (REFERENCE 4.1: 1.6–2.0) [P]
+ASYMMETRY_MARGIN = 1.8  #: pickup / symmetrical I_LR [-] (METHODS.md §4.1: 1.6–2.0) [P]
 LOWEST_MARGIN = 1.6  #: below this a warning [-] [P]
-SENSITIVITY_RATIO = 2.0  #: minimum phase-to-phase fault / pickup [-] (REFERENCE 4.1) [P]
-BLOCK_FRACTION = 0.9  #: block trips above this × contactor breaking current [-] (REFERENCE 4.2: 10 % margin) [P]
+SENSITIVITY_RATIO = 2.0  #: minimum phase-to-phase fault / pickup [-] (METHODS.md §4.1) [P]
+BLOCK_FRACTION = 0.9  #: block trips above this × contactor breaking current [-] (METHODS.md §4.2: 10 % margin) [P]
 
 
 def block_threshold(contactor_breaking_current: float) -> float:
@@ -31,7 +31,7 @@ def block_threshold(contactor_breaking_current: float) -> float:
 
     Examples
     --------
-    >>> block_threshold(4000.0)   # REFERENCE 4.2: 3600 A
+    >>> block_threshold(4000.0)   # METHODS.md §4.2: 3600 A
     3600.0
     """
     return BLOCK_FRACTION * contactor_breaking_current

@@ -2,7 +2,7 @@
 
 Rule: the maker's cold/hot starts, else the standard duty of two starts from cold and one from hot (NEMA MG 1
 12.54 / Part 20, IEC 60034-12 [M]). The minimum time between starts is the standstill cooling the rotor needs
-after a start from hot before one more start fits (REFERENCE 2.3): heat at rated load θ_hot = 1 − t_sh/t_sc, one
+after a start from hot before one more start fits (METHODS.md §2.3): heat at rated load θ_hot = 1 − t_sh/t_sc, one
 start uses Δθ = ∫I²dt / (I_LR²·t_sc), a start is allowed when θ + 1.1·Δθ ≤ 1, and the wait is τc·ln(θ/θ_allow).
 NEMA MG 10 Table 2-3 gives the starts per hour and the minimum rest where it applies (2–6 poles, ≤ 250 hp).
 """
@@ -18,7 +18,7 @@ from machines.standards.nema import mg10_starts_per_hour
 from machines.standards.thermal_replica import cooling_time, heat_stored_at_rated_load
 
 FID = "66"
-START_MARGIN = 1.1  #: m in θ + m·Δθ ≤ 1 (REFERENCE 2.3: 1.1–1.25) [P]
+START_MARGIN = 1.1  #: m in θ + m·Δθ ≤ 1 (METHODS.md §2.3: 1.1–1.25) [P]
 MIN_BETWEEN = 60.0  #: shortest time between starts proposed [s] [P]
 COOL_TO_AMBIENT = 3.0  #: cooling time constants to reach ambient (95 % of the heat gone) [-]
 

@@ -1,6 +1,6 @@
 """Stator earth-fault protection: 59N and 27TN on high-resistance grounding, 51N/50N on low-resistance grounding.
 
-High-resistance (or distribution-transformer) grounding, REFERENCE 7.1: the resistor is sized so that its current
+High-resistance (or distribution-transformer) grounding, METHODS.md §7.1: the resistor is sized so that its current
 is at least the capacitive current (R_N ≤ X_C0/3, referred to the neutral); a fundamental-frequency neutral
 overvoltage element (59N) picked up at 5 % of the phase voltage covers 95 % of the winding from the terminals; a
 third-harmonic neutral undervoltage element (27TN) set at half the lowest healthy third-harmonic neutral voltage
@@ -20,12 +20,12 @@ from machines.standards import grounding as gnd
 from machines.standards.inverse_time import CURVES, curve_constants, inverse_operate_time, time_multiplier_for
 
 HIGH_RESISTANCE = ("distribution-transformer", "high-resistance", "ungrounded")
-COVERAGE = 0.95  #: REFERENCE 7.1: 59N at 5 % of V_LN (value from memory)
-NEUTRAL_DELAY = 2.0  #: [s] REFERENCE 7.1: 1–5 s, coordinated with VT fuses and HV-side faults (common practice)
-THIRD_HARMONIC_FRACTION = 0.5  #: 27TN at 50 % of the lowest healthy V3N (REFERENCE 7.1, value from memory)
+COVERAGE = 0.95  #: METHODS.md §7.1: 59N at 5 % of V_LN (value from memory)
+NEUTRAL_DELAY = 2.0  #: [s] METHODS.md §7.1: 1–5 s, coordinated with VT fuses and HV-side faults (common practice)
+THIRD_HARMONIC_FRACTION = 0.5  #: 27TN at 50 % of the lowest healthy V3N (METHODS.md §7.1, value from memory)
 THIRD_HARMONIC_DELAY = 5.0  #: [s] common practice, no published source
 SUPERVISION_VOLTAGE = 0.9  #: 27TN enabled above 90 % terminal voltage (common practice, no published source)
-NEUTRAL_OC_FRACTION = 0.10  #: 51N at 10 % of the available earth-fault current (REFERENCE 7.2; common practice)
+NEUTRAL_OC_FRACTION = 0.10  #: 51N at 10 % of the available earth-fault current (METHODS.md §7.2; common practice)
 NEUTRAL_OC_TARGET = 1.0  #: [s] 51N time at the full earth-fault current (common practice)
 HIGH_SET_FRACTION = 0.5  #: 50N at 50 % of the earth-fault current (common practice, no published source)
 HIGH_SET_DELAY = 0.5  #: [s] above feeder instantaneous earth-fault clearing (common practice)

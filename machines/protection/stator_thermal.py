@@ -15,8 +15,8 @@ from machines.standards.generator_capability import ARMATURE_POINTS, armature_ca
 from machines.standards.thermal_replica import thermal_level, thermal_operate_time
 
 FID = "49"
-PICKUP = 1.05  #: k: pickup at 105 % of rated current (REFERENCE 2.4; common practice)
-ALARM_LEVEL = 0.95  #: alarm at 95 % of the trip level (REFERENCE 2.4: 80–95 %; common practice)
+PICKUP = 1.05  #: k: pickup at 105 % of rated current (METHODS.md §2.4; common practice)
+ALARM_LEVEL = 0.95  #: alarm at 95 % of the trip level (METHODS.md §2.4: 80–95 %; common practice)
 TEST_MULTIPLES = (1.3, 1.54, 2.26)  #: test currents, pu of rated (on the C50.13 capability points)
 
 

@@ -1,15 +1,15 @@
 """49 stator thermal overload of an induction motor: an IEC 60255-149 thermal replica.
 
 Rule:
-- Pickup k·I_B: service factor + 0.05 pu (1.05 × FLC for SF 1.0, 1.20 × FLC for SF 1.15; REFERENCE 2.4 [P]) and
+- Pickup k·I_B: service factor + 0.05 pu (1.05 × FLC for SF 1.0, 1.20 × FLC for SF 1.15; METHODS.md §2.4 [P]) and
   never above the NEC 430.32(A)(1) limit (1.25 / 1.15 × FLC).
 - Heating time constant: the maker's, else fitted so that the replica, running hot at rated current, trips at the
   locked-rotor current (upper bound) in the hot safe stall time. A single time constant cannot honour both stall
-  times (REFERENCE 2.2): fitted to the cold stall it trips a hot start far too early; fitted to the hot stall it is
+  times (METHODS.md §2.2): fitted to the cold stall it trips a hot start far too early; fitted to the hot stall it is
   slow from cold. We fit to the hot stall so that a start the motor can take is never tripped, and leave the stall
   from cold to 51LR, whose delay is below the hot (and so the cold) safe stall time. The record shows the operate
   times at locked-rotor current from cold and hot with their margins.
-- Cooling (standstill) time constant: the maker's, else 3 × heating (REFERENCE 2.3: 2–6 × [P]).
+- Cooling (standstill) time constant: the maker's, else 3 × heating (METHODS.md §2.3: 2–6 × [P]).
   When a start from hot at minimum voltage would use more than 90 % of the capacity left by that fitted τ, the
   computed τ is lengthened until it does not (a warning says so; the hot stall is then 51LR's alone).
 - The replica is run through the computed starts (minimum and computed voltage), cold and hot; a trip there (with
@@ -30,9 +30,9 @@ from machines.standards.thermal_replica import (
 )
 
 FID = "49"
-PICKUP_ABOVE_SF = 0.05  #: pickup = (service factor + this) × FLC [pu]; REFERENCE 2.4, common practice
-COOLING_RATIO = 3.0  #: standstill cooling constant / heating constant when the maker gives none; REFERENCE 2.3 [P]
-ALARM_LEVEL = 0.95  #: thermal alarm level [-]; REFERENCE 2.4 (80–95 %), above the level at service-factor load [P]
+PICKUP_ABOVE_SF = 0.05  #: pickup = (service factor + this) × FLC [pu]; METHODS.md §2.4, common practice
+COOLING_RATIO = 3.0  #: standstill cooling constant / heating constant when the maker gives none; METHODS.md §2.3 [P]
+ALARM_LEVEL = 0.95  #: thermal alarm level [-]; METHODS.md §2.4 (80–95 %), above the level at service-factor load [P]
 START_SHARE = 0.90  #: a hot start at minimum voltage may use at most this share of the capacity left [-] [P]
 TEST_MULTIPLES = (2.0, 3.0, 5.0)  #: test currents, multiples of the pickup [-]
 

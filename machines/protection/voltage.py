@@ -1,6 +1,6 @@
 """27 undervoltage and 59 overvoltage protection of a generator (two function ids, one module).
 
-Common practice (REFERENCE 13): undervoltage at 0.80 pu with a delay longer than system backup clearing;
+Common practice (METHODS.md §13): undervoltage at 0.80 pu with a delay longer than system backup clearing;
 overvoltage in two stages, about 1.10 pu for a few seconds and 1.30 pu fast (hydro units after load rejection need
 it most). The maker's data govern.
 """
@@ -12,9 +12,9 @@ from machines.record import Check, FunctionSettings, Setting
 
 UNDER_PICKUP = 0.80  #: [pu] common practice, no published source
 UNDER_DELAY = 3.0  #: [s] common practice, no published source
-OVER_PICKUP = 1.10  #: [pu] REFERENCE 13 (common practice)
-OVER_DELAY = 3.0  #: [s] REFERENCE 13: "a few seconds" (common practice)
-OVER_HIGH = 1.30  #: [pu] REFERENCE 13: 1.3–1.4 pu (common practice)
+OVER_PICKUP = 1.10  #: [pu] METHODS.md §13 (common practice)
+OVER_DELAY = 3.0  #: [s] METHODS.md §13: "a few seconds" (common practice)
+OVER_HIGH = 1.30  #: [pu] METHODS.md §13: 1.3–1.4 pu (common practice)
 OVER_HIGH_DELAY = 0.1  #: [s] common practice
 NORMAL_BAND = 0.05  #: IEEE C50.13: rated kVA within ±5 % voltage
 

@@ -1,9 +1,9 @@
 """51V voltage-restrained overcurrent: system backup for faults the generator feeds.
 
-The guide (REFERENCE 9.4): pickup ≈ 150 % of rated current at rated voltage (IEEE C37.102), reduced in proportion
+The guide (METHODS.md §9.4): pickup ≈ 150 % of rated current at rated voltage (IEEE C37.102), reduced in proportion
 to the terminal voltage down to 25 % of the setting (linear restraint); inverse-time, graded above the slowest
 downstream protection. The check that matters: with the field not forced, a sustained fault is fed with only
-E/X_d, so the restrained pickup at the fault's voltage must stay below that current with margin (REFERENCE 9.6
+E/X_d, so the restrained pickup at the fault's voltage must stay below that current with margin (METHODS.md §9.6
 shows a setting that fails it).
 """
 
@@ -16,10 +16,10 @@ from machines.standards.generator_capability import restrained_pickup
 from machines.standards.inverse_time import CURVES, curve_constants, inverse_operate_time, time_multiplier_for
 
 FID = "51V"
-PICKUP = 1.5  #: [pu of rated current] at rated voltage (REFERENCE 9.4, IEEE C37.102; value from memory)
-FLOOR = 0.25  #: restraint floor, fraction of the pickup (REFERENCE 9.4, Gers & Holmes §5.8)
+PICKUP = 1.5  #: [pu of rated current] at rated voltage (METHODS.md §9.4, IEEE C37.102; value from memory)
+FLOOR = 0.25  #: restraint floor, fraction of the pickup (METHODS.md §9.4, Gers & Holmes §5.8)
 TARGET_TIME = 1.0  #: [s] at the transient terminal-fault current, fully restrained (common practice)
-MARGIN = 2.0  #: sustained fault current ≥ 2 × restrained pickup (REFERENCE 9.4 [derived])
+MARGIN = 2.0  #: sustained fault current ≥ 2 × restrained pickup (METHODS.md §9.4 [derived])
 CHECK_VOLTAGE = 0.0  #: [pu] terminal voltage of the fault checked: a terminal fault (restraint at its floor)
 MIN_PICKUP = 1.25  #: [pu] below this the element may trip on overload near rated voltage (common practice)
 TEST_MULTIPLES = (2.0, 3.0, 5.0)

@@ -2,7 +2,7 @@
 
 IEC 60255-151 and IEC 60255-127 let the relay maker declare an assigned error for operate time as "± x % of the
 theoretical time or ± y ms, whichever is greater". relaywright uses that template with x = 5 % and y = 30 ms unless
-the engineer gives the maker's figures (REFERENCE 12.2); the rule is printed beside every test point.
+the engineer gives the maker's figures (METHODS.md §12.2); the rule is printed beside every test point.
 """
 
 from __future__ import annotations
@@ -24,11 +24,11 @@ def operate_time_tolerance(expected_time: float, assigned_error: float = DEFAULT
     References
     ----------
     IEC 60255-151:2009, accuracy of dependent-time operation (template "± x % or ± y ms, whichever is greater");
-    IEC 60255-127:2010, same template for definite time. REFERENCE 12.2, 12.3.
+    IEC 60255-127:2010, same template for definite time. METHODS.md §12.2, 12.3.
 
     Examples
     --------
-    >>> round(operate_time_tolerance(2.006), 4)   # REFERENCE 12.3: 1.906 – 2.106 s
+    >>> round(operate_time_tolerance(2.006), 4)   # METHODS.md §12.3: 1.906 – 2.106 s
     0.1003
     >>> operate_time_tolerance(0.2)
     0.03

@@ -89,11 +89,11 @@ def tap_class_voltage(c_class_voltage: float, turns_in_use: float, full_turns: f
 
     References
     ----------
-    IEEE C57.13 multi-ratio CTs; REFERENCE 11.1 [M].
+    IEEE C57.13 multi-ratio CTs; METHODS.md §11.1 [M].
 
     Examples
     --------
-    >>> tap_class_voltage(400.0, 120, 240)   # 600/5 tap of a 1200/5 C400: REFERENCE 11.2 → C200
+    >>> tap_class_voltage(400.0, 120, 240)   # 600/5 tap of a 1200/5 C400: METHODS.md §11.2 → C200
     200.0
     """
     return c_class_voltage * turns_in_use / full_turns
@@ -119,13 +119,13 @@ def c37110_saturation_index(fault_current: float, ct_primary: float, burden: flo
     References
     ----------
     IEEE Std C37.110-2007, guide for the application of CTs used for protective relaying, saturation criterion;
-    REFERENCE 11.1, 11.2.
+    METHODS.md §11.1, 11.2.
 
     Examples
     --------
-    >>> round(c37110_saturation_index(25e3, 1200.0, 0.5, 400.0, 15.0), 2)   # REFERENCE 11.2: 41.67
+    >>> round(c37110_saturation_index(25e3, 1200.0, 0.5, 400.0, 15.0), 2)   # METHODS.md §11.2: 41.67
     41.67
-    >>> round(c37110_saturation_index(20e3, 2000.0, 0.2, 400.0, 10.0), 3)   # REFERENCE 11.2: 5.500
+    >>> round(c37110_saturation_index(20e3, 2000.0, 0.2, 400.0, 10.0), 3)   # METHODS.md §11.2: 5.500
     5.5
     """
     i_pu = fault_current / ct_primary
@@ -138,7 +138,7 @@ def required_secondary_voltage(fault_current: float, ct_ratio: float, burden: fl
 
     References
     ----------
-    IEEE Std C37.110-2007; REFERENCE 11.1, 11.2 (833.3 V for 25 kA, 1200/5, 0.5 Ω, X/R 15).
+    IEEE Std C37.110-2007; METHODS.md §11.1, 11.2 (833.3 V for 25 kA, 1200/5, 0.5 Ω, X/R 15).
 
     Examples
     --------
@@ -169,11 +169,11 @@ def time_to_saturate(fault_current: float, ct_primary: float, burden: float, c_c
 
     References
     ----------
-    IEEE Std C37.110-2007, annex on time to saturate [M]; REFERENCE 11.1, 11.2.
+    IEEE Std C37.110-2007, annex on time to saturate [M]; METHODS.md §11.1, 11.2.
 
     Examples
     --------
-    >>> round(time_to_saturate(25e3, 1200.0, 0.5, 400.0, 15.0, 60.0), 5)   # REFERENCE 11.2: 0.02345 s
+    >>> round(time_to_saturate(25e3, 1200.0, 0.5, 400.0, 15.0, 60.0), 5)   # METHODS.md §11.2: 0.02345 s
     0.02345
     """
     sym = c37110_saturation_index(fault_current, ct_primary, burden, c_class_voltage, 0.0)

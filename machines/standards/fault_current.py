@@ -55,11 +55,11 @@ def phase_to_phase_fault_current(three_phase_current: float) -> float:
 
     References
     ----------
-    Symmetrical components, line-to-line fault with equal positive and negative impedances. REFERENCE 4.1.
+    Symmetrical components, line-to-line fault with equal positive and negative impedances. METHODS.md §4.1.
 
     Examples
     --------
-    >>> round(phase_to_phase_fault_current(8000.0), 0)   # REFERENCE 4.2: 8 kA → 6928 A
+    >>> round(phase_to_phase_fault_current(8000.0), 0)   # METHODS.md §4.2: 8 kA → 6928 A
     6928.0
     """
     return math.sqrt(3.0) / 2.0 * three_phase_current
@@ -74,7 +74,7 @@ def asymmetrical_rms_factor(x_over_r: float, time: float, frequency: float) -> f
 
     References
     ----------
-    IEEE Std C37.010 / IEC 60909-0 asymmetry of short-circuit current; REFERENCE 4.2 (X/R 10, t = 1/120 s → 1.438).
+    IEEE Std C37.010 / IEC 60909-0 asymmetry of short-circuit current; METHODS.md §4.2 (X/R 10, t = 1/120 s → 1.438).
 
     Examples
     --------

@@ -1,6 +1,6 @@
 """System frequency after a loss of generation, and off-frequency operation of turbines.
 
-- Swing equation: the initial rate of change of frequency after a step power deficit (REFERENCE 8.3).
+- Swing equation: the initial rate of change of frequency after a step power deficit (METHODS.md §8.3).
 - The low-order system-frequency-response (SFR) model of Anderson and Mirheydar (IEEE Trans. Power Systems 5(3),
   1990): natural frequency, damping, steady-state deviation and the time and depth of the nadir.
 - Off-frequency bands: which band a frequency lies in, the fraction of a band's accumulated-time allowance an event
@@ -31,13 +31,13 @@ def initial_rocof(power_deficit: float, inertia_constant: float, frequency: floa
 
     References
     ----------
-    Swing equation, e.g. P. Kundur, Power System Stability and Control (1994), ch. 3; REFERENCE 8.3, 8.4.
+    Swing equation, e.g. P. Kundur, Power System Stability and Control (1994), ch. 3; METHODS.md §8.3, 8.4.
 
     Examples
     --------
-    >>> initial_rocof(0.1, 4.0, 60.0)    # REFERENCE 8.4
+    >>> initial_rocof(0.1, 4.0, 60.0)    # METHODS.md §8.4
     -0.75
-    >>> initial_rocof(0.05, 5.0, 50.0)   # REFERENCE 8.4
+    >>> initial_rocof(0.05, 5.0, 50.0)   # METHODS.md §8.4
     -0.25
     """
     if not (math.isfinite(inertia_constant) and inertia_constant > 0.0):
@@ -66,7 +66,7 @@ def sfr_natural_frequency(p: SfrParameters) -> float:
 
     Examples
     --------
-    >>> round(sfr_natural_frequency(SfrParameters(4, 0.05, 0.3, 8, 1, 0.95)), 4)   # REFERENCE 8.4
+    >>> round(sfr_natural_frequency(SfrParameters(4, 0.05, 0.3, 8, 1, 0.95)), 4)   # METHODS.md §8.4
     0.559
     """
     return math.sqrt((p.d * p.r + p.km) / (2.0 * p.h * p.r * p.tr))
@@ -77,7 +77,7 @@ def sfr_damping_ratio(p: SfrParameters) -> float:
 
     Examples
     --------
-    >>> round(sfr_damping_ratio(SfrParameters(4, 0.05, 0.3, 8, 1, 0.95)), 4)   # REFERENCE 8.4
+    >>> round(sfr_damping_ratio(SfrParameters(4, 0.05, 0.3, 8, 1, 0.95)), 4)   # METHODS.md §8.4
     0.8609
     """
     wn = sfr_natural_frequency(p)
@@ -89,7 +89,7 @@ def sfr_steady_state_deviation(p: SfrParameters, disturbance: float) -> float:
 
     Examples
     --------
-    >>> round(sfr_steady_state_deviation(SfrParameters(4, 0.05, 0.3, 8, 1, 0.95), -0.2) * 60, 4)   # REFERENCE 8.4
+    >>> round(sfr_steady_state_deviation(SfrParameters(4, 0.05, 0.3, 8, 1, 0.95), -0.2) * 60, 4)   # METHODS.md §8.4
     -0.6
     """
     return p.r * disturbance / (p.d * p.r + p.km)
@@ -107,7 +107,7 @@ def sfr_deviation(p: SfrParameters, disturbance: float, t: float) -> float:
     References
     ----------
     P. M. Anderson, M. Mirheydar, "A low-order system frequency response model", IEEE Trans. Power Systems 5(3),
-    1990 (value from memory, verified numerically); REFERENCE 8.3.
+    1990 (value from memory, verified numerically); METHODS.md §8.3.
 
     Examples
     --------
@@ -128,7 +128,7 @@ def sfr_nadir_time(p: SfrParameters) -> float:
 
     Examples
     --------
-    >>> round(sfr_nadir_time(SfrParameters(4, 0.05, 0.3, 8, 1, 0.95)), 3)   # REFERENCE 8.4
+    >>> round(sfr_nadir_time(SfrParameters(4, 0.05, 0.3, 8, 1, 0.95)), 3)   # METHODS.md §8.4
     2.369
     """
     wn, z = sfr_natural_frequency(p), sfr_damping_ratio(p)
@@ -141,7 +141,7 @@ def sfr_nadir(p: SfrParameters, disturbance: float) -> float:
 
     Examples
     --------
-    >>> round(sfr_nadir(SfrParameters(4, 0.05, 0.3, 8, 1, 0.95), -0.2), 5)   # REFERENCE 8.4: −0.02166 pu
+    >>> round(sfr_nadir(SfrParameters(4, 0.05, 0.3, 8, 1, 0.95), -0.2), 5)   # METHODS.md §8.4: −0.02166 pu
     -0.02166
     """
     return sfr_deviation(p, disturbance, sfr_nadir_time(p))
@@ -172,7 +172,7 @@ def band_consumption(time_in_band: float, allowance: float) -> float:
 
     References
     ----------
-    IEEE C37.106 (band limits with an accumulated time allowance); REFERENCE 8.1 [derived].
+    IEEE C37.106 (band limits with an accumulated time allowance); METHODS.md §8.1 [derived].
 
     Examples
     --------

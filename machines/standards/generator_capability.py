@@ -14,10 +14,10 @@ from machines.errors import InputError
 # ---------------------------------------------------------------------------------------------------- armature
 
 #: IEEE C50.13 cylindrical-rotor armature short-time capability: (current [pu of rated], time [s]) (value from
-#: memory); REFERENCE 10.
+#: memory); METHODS.md §10.
 C50_13_ARMATURE_POINTS: tuple[tuple[float, float], ...] = ((2.26, 10.0), (1.54, 30.0), (1.30, 60.0), (1.16, 120.0))
 #: IEC 60034-1 occasional excess current of AC generators ≤ 1200 MVA: 1.5 × rated current for 30 s (value from
-#: memory); REFERENCE 10.
+#: memory); METHODS.md §10.
 IEC_60034_ARMATURE_POINTS: tuple[tuple[float, float], ...] = ((1.5, 30.0),)
 ARMATURE_POINTS = {"IEEE": C50_13_ARMATURE_POINTS, "IEC": IEC_60034_ARMATURE_POINTS}
 
@@ -32,13 +32,13 @@ def armature_capability_product(current: float, time: float) -> float:
 
     References
     ----------
-    IEEE C50.13, armature short-time thermal capability (value from memory); REFERENCE 10 check values.
+    IEEE C50.13, armature short-time thermal capability (value from memory); METHODS.md §10 check values.
 
     Examples
     --------
-    >>> [round(armature_capability_product(i, t), 2) for i, t in C50_13_ARMATURE_POINTS]   # REFERENCE 10
+    >>> [round(armature_capability_product(i, t), 2) for i, t in C50_13_ARMATURE_POINTS]   # METHODS.md §10
     [41.08, 41.15, 41.4, 41.47]
-    >>> armature_capability_product(1.5, 30.0)   # REFERENCE 10: IEC 60034-1, 1.5 × for 30 s
+    >>> armature_capability_product(1.5, 30.0)   # METHODS.md §10: IEC 60034-1, 1.5 × for 30 s
     37.5
     """
     return (current * current - 1.0) * time
@@ -80,7 +80,7 @@ def volts_per_hertz(voltage: float, frequency: float) -> float:
 
     Examples
     --------
-    >>> [round(volts_per_hertz(v, f), 3) for v, f in ((1.10, 0.95), (1.05, 1.0), (1.0, 0.9))]   # REFERENCE 9.6
+    >>> [round(volts_per_hertz(v, f), 3) for v, f in ((1.10, 0.95), (1.05, 1.0), (1.0, 0.9))]   # METHODS.md §9.6
     [1.158, 1.05, 1.111]
     """
     if frequency <= 0.0:
@@ -98,11 +98,11 @@ def rebase_voltage_pu(value_pu: float, from_base: float, to_base: float) -> floa
 
     References
     ----------
-    IEEE C37.102 (compare generator and step-up transformer V/Hz on a common base); REFERENCE 9.3, 9.6.
+    IEEE C37.102 (compare generator and step-up transformer V/Hz on a common base); METHODS.md §9.3, 9.6.
 
     Examples
     --------
-    >>> round(rebase_voltage_pu(1.05, 13.8e3, 13.2e3), 3)   # REFERENCE 9.6
+    >>> round(rebase_voltage_pu(1.05, 13.8e3, 13.2e3), 3)   # METHODS.md §9.6
     1.098
     """
     return value_pu * from_base / to_base
@@ -116,7 +116,7 @@ def base_impedance(rated_voltage: float, rated_apparent_power: float) -> float:
 
     Examples
     --------
-    >>> round(base_impedance(13.8e3, 100e6), 3)   # REFERENCE 9.6
+    >>> round(base_impedance(13.8e3, 100e6), 3)   # METHODS.md §9.6
     1.904
     """
     return rated_voltage ** 2 / rated_apparent_power
@@ -127,7 +127,7 @@ def secondary_ohms(primary_ohms: float, ct_factor: float, vt_factor: float) -> f
 
     Examples
     --------
-    >>> round(secondary_ohms(1.904, 1000.0, 120.0), 2)   # REFERENCE 9.6: 5000/5, 14400/120
+    >>> round(secondary_ohms(1.904, 1000.0, 120.0), 2)   # METHODS.md §9.6: 5000/5, 14400/120
     15.87
     """
     return primary_ohms * ct_factor / vt_factor
@@ -147,12 +147,12 @@ def offset_mho_circle(offset: float, diameter: float) -> tuple[tuple[float, floa
 
     References
     ----------
-    IEEE C37.102 two-zone offset-mho loss-of-field approach (value from memory); REFERENCE 9.2.
+    IEEE C37.102 two-zone offset-mho loss-of-field approach (value from memory); METHODS.md §9.2.
 
     Examples
     --------
     >>> c, r = offset_mho_circle(1.984, 15.87)
-    >>> round(c[1] - r, 2)   # REFERENCE 9.6: zone 1 far reach
+    >>> round(c[1] - r, 2)   # METHODS.md §9.6: zone 1 far reach
     -17.85
     """
     return (0.0, -(offset + diameter / 2.0)), diameter / 2.0
@@ -211,7 +211,7 @@ def sustained_fault_current(rated_current: float, xd: float, emf: float = 1.0) -
 
     Examples
     --------
-    >>> round(sustained_fault_current(4184.0, 1.8))   # REFERENCE 9.6
+    >>> round(sustained_fault_current(4184.0, 1.8))   # METHODS.md §9.6
     2324
     """
     return emf / xd * rated_current
@@ -228,11 +228,11 @@ def restrained_pickup(pickup_at_rated_voltage: float, voltage: float, floor: flo
 
     References
     ----------
-    Gers & Holmes, Protection of Electricity Distribution Networks, §5.8 (linear restraint to 25 %); REFERENCE 9.4.
+    Gers & Holmes, Protection of Electricity Distribution Networks, §5.8 (linear restraint to 25 %); METHODS.md §9.4.
 
     Examples
     --------
-    >>> [round(restrained_pickup(6276.0, v)) for v in (1.0, 0.8, 0.4, 0.2)]   # REFERENCE 9.6
+    >>> [round(restrained_pickup(6276.0, v)) for v in (1.0, 0.8, 0.4, 0.2)]   # METHODS.md §9.6
     [6276, 5021, 2510, 1569]
     """
     return pickup_at_rated_voltage * max(min(voltage, 1.0), floor)
@@ -241,8 +241,8 @@ def restrained_pickup(pickup_at_rated_voltage: float, voltage: float, floor: flo
 # ---------------------------------------------------------------------------------------------------- reverse power
 
 #: Power that motors a unit at synchronous speed, fraction of rated kW: (lowest, typical), by prime mover.
-#: Blackburn & Domin, Protective Relaying, generator protection chapter (attribution inferred); REFERENCE 9.1.
-#: The typical values are those of REFERENCE 9.6; the lowest are the bottoms of the handbook ranges (steam 1 %,
+#: Blackburn & Domin, Protective Relaying, generator protection chapter (attribution inferred); METHODS.md §9.1.
+#: The typical values are those of METHODS.md §9.6; the lowest are the bottoms of the handbook ranges (steam 1 %,
 #: hydro 0.2 %, diesel 5 %), except the gas turbine's 10 %, which stands for two-shaft and aeroderivative units
 #: the handbook only calls "much less" than 50 % (common practice, no published source).
 MOTORING_POWER: dict[str, tuple[float, float]] = {
@@ -271,7 +271,7 @@ def secondary_power(primary_power: float, ct_factor: float, vt_factor: float) ->
 
     Examples
     --------
-    >>> round(secondary_power(0.85e6, 1000.0, 120.0), 3)   # REFERENCE 9.6
+    >>> round(secondary_power(0.85e6, 1000.0, 120.0), 3)   # METHODS.md §9.6
     7.083
     """
     return primary_power / (ct_factor * vt_factor)
@@ -285,7 +285,7 @@ def differential_operate_threshold(restraint_current: float, minimum_pickup: flo
 
     Examples
     --------
-    >>> [round(differential_operate_threshold(i, 0.3, 0.10), 3) for i in (1, 5, 10, 20)]   # REFERENCE 9.6
+    >>> [round(differential_operate_threshold(i, 0.3, 0.10), 3) for i in (1, 5, 10, 20)]   # METHODS.md §9.6
     [0.3, 0.5, 1.0, 2.0]
     """
     return max(minimum_pickup, slope * restraint_current)

@@ -1,7 +1,7 @@
 """Neutral grounding and stator earth faults: charging current, resistor sizing, fault current, 59N coverage.
 
 Equations for a high-resistance grounded machine (a grounding resistor, often on the secondary of a distribution
-transformer in the neutral), REFERENCE 7.1::
+transformer in the neutral), METHODS.md §7.1::
 
     X_C0   = 1 / (ω·C0)                     C0 per phase to ground of everything galvanically connected
     3·I_C0 = 3·ω·C0·V_LN                    capacitive current of a bolted terminal earth fault
@@ -37,11 +37,11 @@ def capacitive_reactance(capacitance_per_phase: float, frequency: float) -> floa
 
     References
     ----------
-    IEEE C62.92.2 (generator grounding); REFERENCE 7.1, check value 7.3.
+    IEEE C62.92.2 (generator grounding); METHODS.md §7.1, check value 7.3.
 
     Examples
     --------
-    >>> round(capacitive_reactance(0.25e-6, 60.0))   # REFERENCE 7.3
+    >>> round(capacitive_reactance(0.25e-6, 60.0))   # METHODS.md §7.3
     10610
     """
     _positive("capacitance_per_phase", capacitance_per_phase)
@@ -64,11 +64,11 @@ def charging_current(capacitance_per_phase: float, line_voltage: float, frequenc
 
     References
     ----------
-    IEEE C62.92.2; IEEE C37.101; REFERENCE 7.1, check values 7.3.
+    IEEE C62.92.2; IEEE C37.101; METHODS.md §7.1, check values 7.3.
 
     Examples
     --------
-    >>> round(charging_current(0.25e-6, 18e3, 60.0), 3)   # REFERENCE 7.3
+    >>> round(charging_current(0.25e-6, 18e3, 60.0), 3)   # METHODS.md §7.3
     2.938
     """
     _positive("line_voltage", line_voltage)
@@ -85,11 +85,11 @@ def neutral_resistance_limit(capacitance_per_phase: float, frequency: float) -> 
     References
     ----------
     IEEE C62.92.2; IEEE/IAS working group on grounding of multiple generator installations (value from memory);
-    REFERENCE 7.1, check value 7.3.
+    METHODS.md §7.1, check value 7.3.
 
     Examples
     --------
-    >>> round(neutral_resistance_limit(0.25e-6, 60.0))   # REFERENCE 7.3
+    >>> round(neutral_resistance_limit(0.25e-6, 60.0))   # METHODS.md §7.3
     3537
     """
     return capacitive_reactance(capacitance_per_phase, frequency) / 3.0
@@ -105,7 +105,7 @@ def reflected_secondary_resistance(primary_resistance: float, turns_ratio: float
 
     Examples
     --------
-    >>> round(reflected_secondary_resistance(3537.0, 18000 / 240), 4)   # REFERENCE 7.3
+    >>> round(reflected_secondary_resistance(3537.0, 18000 / 240), 4)   # METHODS.md §7.3
     0.6288
     """
     _positive("primary_resistance", primary_resistance)
@@ -129,7 +129,7 @@ def resistor_current(line_voltage: float, neutral_resistance: float) -> float:
 
     Examples
     --------
-    >>> round(resistor_current(18e3, 3536.8), 3)   # REFERENCE 7.3
+    >>> round(resistor_current(18e3, 3536.8), 3)   # METHODS.md §7.3
     2.938
     """
     _positive("line_voltage", line_voltage)
@@ -142,7 +142,7 @@ def earth_fault_current(resistor_current_a: float, charging_current_a: float) ->
 
     Examples
     --------
-    >>> round(earth_fault_current(2.938, 2.938), 3)   # REFERENCE 7.3
+    >>> round(earth_fault_current(2.938, 2.938), 3)   # METHODS.md §7.3
     4.155
     """
     return math.hypot(resistor_current_a, charging_current_a)
@@ -153,7 +153,7 @@ def resistor_power(line_voltage: float, resistor_current_a: float) -> float:
 
     Examples
     --------
-    >>> round(resistor_power(18e3, 2.938) / 1e3, 2)   # REFERENCE 7.3
+    >>> round(resistor_power(18e3, 2.938) / 1e3, 2)   # METHODS.md §7.3
     30.54
     """
     return line_voltage / SQRT3 * resistor_current_a
@@ -164,7 +164,7 @@ def neutral_voltage_for_fault(line_voltage: float, distance_from_neutral: float)
 
     Examples
     --------
-    >>> round(neutral_voltage_for_fault(18e3, 0.05) / 75.0, 3)   # REFERENCE 7.3, secondary of 18000/240
+    >>> round(neutral_voltage_for_fault(18e3, 0.05) / 75.0, 3)   # METHODS.md §7.3, secondary of 18000/240
     6.928
     """
     if not 0.0 <= distance_from_neutral <= 1.0:
@@ -178,7 +178,7 @@ def neutral_pickup_for_coverage(line_voltage: float, coverage: float) -> float:
 
     Examples
     --------
-    >>> round(neutral_pickup_for_coverage(18e3, 0.95), 1)   # REFERENCE 7.3 (5 % of 10392 V)
+    >>> round(neutral_pickup_for_coverage(18e3, 0.95), 1)   # METHODS.md §7.3 (5 % of 10392 V)
     519.6
     """
     if not 0.0 < coverage < 1.0:

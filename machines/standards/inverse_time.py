@@ -106,13 +106,13 @@ def inverse_operate_time(multiple: float, curve: str, multiplier: float,
     References
     ----------
     IEC 60255-151:2009, dependent-time characteristics and constants; IEEE Std C37.112-2018, equation (1) and
-    table 1. Check values REFERENCE 1.4.
+    table 1. Check values METHODS.md §1.4.
 
     Examples
     --------
-    >>> round(inverse_operate_time(10.0, "IEC-SI", 1.0), 3)   # REFERENCE 1.4
+    >>> round(inverse_operate_time(10.0, "IEC-SI", 1.0), 3)   # METHODS.md §1.4
     2.971
-    >>> round(inverse_operate_time(3.0, "IEEE-VI", 5.0), 2)   # REFERENCE 1.4
+    >>> round(inverse_operate_time(3.0, "IEEE-VI", 5.0), 2)   # METHODS.md §1.4
     14.71
     """
     c = curve_constants(curve)
@@ -139,18 +139,18 @@ def inverse_reset_time(multiple: float, curve: str, multiplier: float) -> float:
 
     Notes
     -----
-    tr(M) = TD · tr / (1 − M²). C37.112 uses the exponent 2 for every curve (not p); REFERENCE 1.2 shows how far
+    tr(M) = TD · tr / (1 − M²). C37.112 uses the exponent 2 for every curve (not p); METHODS.md §1.2 shows how far
     apart the two choices are for the moderately inverse curve.
 
     References
     ----------
-    IEEE Std C37.112-2018, equation (2) and table 1. Check values REFERENCE 1.4.
+    IEEE Std C37.112-2018, equation (2) and table 1. Check values METHODS.md §1.4.
 
     Examples
     --------
-    >>> round(inverse_reset_time(0.5, "IEEE-MI", 1.0), 3)     # REFERENCE 1.4
+    >>> round(inverse_reset_time(0.5, "IEEE-MI", 1.0), 3)     # METHODS.md §1.4
     6.467
-    >>> round(inverse_reset_time(0.9, "IEEE-EI", 1.0), 1)     # REFERENCE 1.4
+    >>> round(inverse_reset_time(0.9, "IEEE-EI", 1.0), 1)     # METHODS.md §1.4
     153.2
     """
     c = curve_constants(curve)
@@ -182,11 +182,11 @@ def time_multiplier_for(target_time: float, multiple: float, curve: str) -> floa
 
     References
     ----------
-    IEC 60255-151:2009; IEEE Std C37.112-2018. Check value REFERENCE 1.4 (TMS for IEC SI, 0.5 s at M = 8).
+    IEC 60255-151:2009; IEEE Std C37.112-2018. Check value METHODS.md §1.4 (TMS for IEC SI, 0.5 s at M = 8).
 
     Examples
     --------
-    >>> round(time_multiplier_for(0.5, 8.0, "IEC-SI"), 4)     # REFERENCE 1.4
+    >>> round(time_multiplier_for(0.5, 8.0, "IEC-SI"), 4)     # METHODS.md §1.4
     0.1517
     """
     c = curve_constants(curve)

@@ -3,10 +3,10 @@
 Two numbers describe a machine: the continuous negative-sequence current I2 it carries indefinitely [pu of rated
 current] and the short-time constant K = I2²·t [s] it withstands during unbalanced faults. The tables below are data
 keyed by (family, rotor type); directly cooled cylindrical rotors depend on the rating by the formulas of the
-standards. Every value is from memory of the standards (REFERENCE 6.1, 6.2) and is shown on the sheet as an
+standards. Every value is from memory of the standards (METHODS.md §6.1, 6.2) and is shown on the sheet as an
 editable default; the maker's values in the machine file always win.
 
-The trip characteristic of a negative-sequence element is t = K / I2² (REFERENCE 6.3); a terminal
+The trip characteristic of a negative-sequence element is t = K / I2² (METHODS.md §6.3); a terminal
 phase-to-phase fault drives I2 = E / (X1 + X2).
 """
 
@@ -66,11 +66,11 @@ def c50_13_direct_k(rated_apparent_power: float) -> float:
 
     References
     ----------
-    IEEE C50.13, permissible unbalanced currents (value from memory); REFERENCE 6.1, check values 6.4.
+    IEEE C50.13, permissible unbalanced currents (value from memory); METHODS.md §6.1, check values 6.4.
 
     Examples
     --------
-    >>> [round(c50_13_direct_k(s * 1e6), 3) for s in (500, 800, 1000, 1200, 1600)]   # REFERENCE 6.4
+    >>> [round(c50_13_direct_k(s * 1e6), 3) for s in (500, 800, 1000, 1200, 1600)]   # METHODS.md §6.4
     [10.0, 10.0, 8.75, 7.5, 5.0]
     """
     mva = rated_apparent_power / 1e6
@@ -89,13 +89,13 @@ def c50_13_direct_continuous(rated_apparent_power: float) -> float:
 
     References
     ----------
-    IEEE C50.13-2005, permissible unbalanced currents (value from memory, lower confidence); REFERENCE 6.1, 6.4.
+    IEEE C50.13-2005, permissible unbalanced currents (value from memory, lower confidence); METHODS.md §6.1, 6.4.
 
     Examples
     --------
-    >>> round(c50_13_direct_continuous(600e6) * 100, 3)    # REFERENCE 6.4: 7.167 %
+    >>> round(c50_13_direct_continuous(600e6) * 100, 3)    # METHODS.md §6.4: 7.167 %
     7.167
-    >>> round(c50_13_direct_continuous(1000e6) * 100, 3)   # REFERENCE 6.4: 5.833 %
+    >>> round(c50_13_direct_continuous(1000e6) * 100, 3)   # METHODS.md §6.4: 5.833 %
     5.833
     """
     mva = rated_apparent_power / 1e6
@@ -115,11 +115,11 @@ def iec_direct_continuous(rated_apparent_power: float) -> float:
 
     References
     ----------
-    IEC 60034-1, table of unbalanced operating conditions (value from memory); REFERENCE 6.2, 6.4.
+    IEC 60034-1, table of unbalanced operating conditions (value from memory); METHODS.md §6.2, 6.4.
 
     Examples
     --------
-    >>> [round(iec_direct_continuous(s * 1e6), 5) for s in (300, 600, 900, 1250)]   # REFERENCE 6.4
+    >>> [round(iec_direct_continuous(s * 1e6), 5) for s in (300, 600, 900, 1250)]   # METHODS.md §6.4
     [0.08, 0.07167, 0.06167, 0.05]
     """
     mva = rated_apparent_power / 1e6
@@ -142,7 +142,7 @@ def iec_direct_k(rated_apparent_power: float) -> float:
 
     Examples
     --------
-    >>> [round(iec_direct_k(s * 1e6), 3) for s in (300, 600, 900, 1250)]   # REFERENCE 6.4
+    >>> [round(iec_direct_k(s * 1e6), 3) for s in (300, 600, 900, 1250)]   # METHODS.md §6.4
     [8.0, 6.638, 5.002, 5.0]
     """
     mva = rated_apparent_power / 1e6
@@ -199,7 +199,7 @@ def negative_sequence_trip_time(negative_sequence_current: float, k: float) -> f
 
     References
     ----------
-    IEEE C50.13 and IEC 60034-1 (the I2²t criterion); REFERENCE 6.3, check values 6.4.
+    IEEE C50.13 and IEC 60034-1 (the I2²t criterion); METHODS.md §6.3, check values 6.4.
 
     Examples
     --------
@@ -222,11 +222,11 @@ def phase_phase_fault_negative_sequence(emf: float, x1: float, x2: float) -> flo
 
     References
     ----------
-    Symmetrical components, phase-to-phase fault (any power-systems text); REFERENCE 6.4.
+    Symmetrical components, phase-to-phase fault (any power-systems text); METHODS.md §6.4.
 
     Examples
     --------
-    >>> phase_phase_fault_negative_sequence(1.0, 0.2, 0.2)   # REFERENCE 6.4
+    >>> phase_phase_fault_negative_sequence(1.0, 0.2, 0.2)   # METHODS.md §6.4
     2.5
     """
     return emf / (x1 + x2)

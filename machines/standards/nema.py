@@ -2,7 +2,7 @@
 
 Tables are data with one lookup each that raises a clear error. Sources: NEMA MG 1 10.37.2 (code letters), MG 1
 14.36 / Part 20 (voltage unbalance definition, derating figure 14-1), NEMA MG 10 Table 2-3 (starts per hour), as
-reproduced in the EASA Electrical Engineering Handbook and digitised for REFERENCE 2.3, 3.1 and 5.2.
+reproduced in the EASA Electrical Engineering Handbook and digitised for METHODS.md §2.3, 3.1 and 5.2.
 """
 
 from __future__ import annotations
@@ -10,7 +10,7 @@ from __future__ import annotations
 import bisect
 import math
 
-HP = 745.699872  #: one mechanical horsepower [W] (550 ft·lbf/s); REFERENCE 3.4 rounds it to 746 W
+HP = 745.699872  #: one mechanical horsepower [W] (550 ft·lbf/s); METHODS.md §3.4 rounds it to 746 W
 
 #: NEMA MG 1 10.37.2: locked-rotor kVA per horsepower by code letter, (lower, upper) [kVA/hp]. Each range holds
 #: its lower figure up to but not including the upper; V has no upper bound. Letters I, O and Q are not used.
@@ -27,7 +27,7 @@ def code_letter_range(letter: str) -> tuple[float, float]:
 
     References
     ----------
-    NEMA MG 1, 10.37.2 (locked-rotor indicating code letters). REFERENCE 3.1.
+    NEMA MG 1, 10.37.2 (locked-rotor indicating code letters). METHODS.md §3.1.
 
     Examples
     --------
@@ -45,7 +45,7 @@ def code_letter_for(kva_per_hp: float) -> str:
 
     Examples
     --------
-    >>> code_letter_for(3.14), code_letter_for(3.15)   # REFERENCE 3.1: 3.14 → A, 3.15 → B
+    >>> code_letter_for(3.14), code_letter_for(3.15)   # METHODS.md §3.1: 3.14 → A, 3.15 → B
     ('A', 'B')
     """
     for letter, (lo, hi) in CODE_LETTERS.items():
@@ -69,11 +69,11 @@ def locked_rotor_current_from_kva(kva_per_hp: float, rated_output: float, rated_
 
     References
     ----------
-    NEMA MG 1 10.37.2 definition of locked-rotor kVA. REFERENCE 3.1, 3.4.
+    NEMA MG 1 10.37.2 definition of locked-rotor kVA. METHODS.md §3.1, 3.4.
 
     Examples
     --------
-    >>> round(locked_rotor_current_from_kva(5.6, 500 * HP, 4160.0), 1)   # REFERENCE 3.4: 388.6 A
+    >>> round(locked_rotor_current_from_kva(5.6, 500 * HP, 4160.0), 1)   # METHODS.md §3.4: 388.6 A
     388.6
     """
     return 1000.0 * kva_per_hp * (rated_output / HP) / (math.sqrt(3.0) * rated_voltage)
@@ -84,11 +84,11 @@ def locked_rotor_current_range(letter: str, rated_output: float, rated_voltage: 
 
     References
     ----------
-    NEMA MG 1 10.37.2. REFERENCE 3.4.
+    NEMA MG 1 10.37.2. METHODS.md §3.4.
 
     Examples
     --------
-    >>> lo, hi = locked_rotor_current_range("G", 50 * HP, 460.0)   # REFERENCE 3.4: 351.4–395.4 A
+    >>> lo, hi = locked_rotor_current_range("G", 50 * HP, 460.0)   # METHODS.md §3.4: 351.4–395.4 A
     >>> round(lo, 1), round(hi, 1)
     (351.4, 395.4)
     """
@@ -102,18 +102,18 @@ def voltage_unbalance_percent(v_ab: float, v_bc: float, v_ca: float) -> float:
 
     References
     ----------
-    NEMA MG 1 14.36 (medium motors) and Part 20 (large motors). REFERENCE 5.1, 5.5.
+    NEMA MG 1 14.36 (medium motors) and Part 20 (large motors). METHODS.md §5.1, 5.5.
 
     Examples
     --------
-    >>> round(voltage_unbalance_percent(462.0, 463.0, 455.0), 3)   # REFERENCE 5.5: 1.087 %
+    >>> round(voltage_unbalance_percent(462.0, 463.0, 455.0), 3)   # METHODS.md §5.5: 1.087 %
     1.087
     """
     avg = (v_ab + v_bc + v_ca) / 3.0
     return 100.0 * max(abs(v_ab - avg), abs(v_bc - avg), abs(v_ca - avg)) / avg
 
 
-#: NEMA MG 1 Fig. 14-1 derating factor against percent voltage unbalance, digitised (REFERENCE 5.2). The 1 % point
+#: NEMA MG 1 Fig. 14-1 derating factor against percent voltage unbalance, digitised (METHODS.md §5.2). The 1 % point
 #: is where the curve starts to derate [value from memory]; MG 1 does not recommend operation above 5 %.
 DERATING: tuple[tuple[float, float], ...] = (
     (0.0, 1.00), (0.5, 1.00), (1.0, 1.00), (1.5, 0.97), (2.0, 0.95), (2.5, 0.93), (3.0, 0.89), (3.5, 0.85),
@@ -131,7 +131,7 @@ def unbalance_derating_factor(unbalance_percent: float) -> float:
 
     References
     ----------
-    NEMA MG 1 Fig. 14-1, digitised; REFERENCE 5.2.
+    NEMA MG 1 Fig. 14-1, digitised; METHODS.md §5.2.
 
     Examples
     --------
@@ -149,8 +149,8 @@ def unbalance_derating_factor(unbalance_percent: float) -> float:
     return y0 + (y1 - y0) * (unbalance_percent - x0) / (x1 - x0)
 
 
-#: NEMA MG 10 Table 2-3 rows (REFERENCE 2.3, from the EASA handbook): hp → {poles: (A starts/h, B = starts/h ×
-#: load WK² [lb·ft²], C minimum rest between starts [s])}. Only the rows REFERENCE reproduces; between rows the
+#: NEMA MG 10 Table 2-3 rows (METHODS.md §2.3, from the EASA handbook): hp → {poles: (A starts/h, B = starts/h ×
+#: load WK² [lb·ft²], C minimum rest between starts [s])}. Only the rows METHODS.md §2.3 reproduces; between rows the
 #: lookup interpolates linearly in hp (a reading aid, not the table).
 MG10_STARTS: dict[float, dict[int, tuple[float, float, float]]] = {
     10.0: {2: (6.2, 11.0, 92.0), 4: (12.5, 51.0, 46.0), 6: (14.2, 137.0, 41.0)},
@@ -202,11 +202,11 @@ def mg10_starts_per_hour(horsepower: float, poles: int, load_wk2: float) -> tupl
 
     References
     ----------
-    NEMA MG 10, Table 2-3 (EASA Electrical Engineering Handbook). REFERENCE 2.3, 2.5.
+    NEMA MG 10, Table 2-3 (EASA Electrical Engineering Handbook). METHODS.md §2.3, 2.5.
 
     Examples
     --------
-    >>> s, rest = mg10_starts_per_hour(100.0, 4, 200.0)   # REFERENCE 2.5: 2.205 starts/h, rest ≥ 110 s
+    >>> s, rest = mg10_starts_per_hour(100.0, 4, 200.0)   # METHODS.md §2.5: 2.205 starts/h, rest ≥ 110 s
     >>> round(s, 3), rest
     (2.205, 110.0)
     """

@@ -21,11 +21,11 @@ def nec_overload_limit(service_factor: float, temperature_rise: float | None = N
 
     References
     ----------
-    NFPA 70 (NEC) 430.32(A)(1). REFERENCE 10.
+    NFPA 70 (NEC) 430.32(A)(1). METHODS.md §10.
 
     Examples
     --------
-    >>> round(24.0 * nec_overload_limit(1.15), 2), round(26.0 * nec_overload_limit(1.0), 2)   # REFERENCE 10
+    >>> round(24.0 * nec_overload_limit(1.15), 2), round(26.0 * nec_overload_limit(1.0), 2)   # METHODS.md §10
     (30.0, 29.9)
     """
     if service_factor >= 1.15 - 1e-9 or (temperature_rise is not None and temperature_rise <= 40.0):

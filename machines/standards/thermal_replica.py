@@ -41,13 +41,13 @@ def thermal_operate_time(current: float, pickup_current: float, time_constant: f
 
     References
     ----------
-    IEC 60255-149:2013, thermal electrical relays, operate-time equation (same form as IEC 60255-8). REFERENCE 2.1.
+    IEC 60255-149:2013, thermal electrical relays, operate-time equation (same form as IEC 60255-8). METHODS.md §2.1.
 
     Examples
     --------
-    >>> round(thermal_operate_time(1.5, 1.05, 1800.0), 1)          # REFERENCE 2.5: 1212 s
+    >>> round(thermal_operate_time(1.5, 1.05, 1800.0), 1)          # METHODS.md §2.5: 1212 s
     1212.1
-    >>> round(thermal_operate_time(2.0, 1.05, 1800.0, 1.0), 2)     # REFERENCE 2.5: 62.58 s
+    >>> round(thermal_operate_time(2.0, 1.05, 1800.0, 1.0), 2)     # METHODS.md §2.5: 62.58 s
     62.58
     >>> thermal_operate_time(1.0, 1.05, 1800.0)
     inf
@@ -78,11 +78,11 @@ def thermal_level(current: float, pickup_current: float, time_constant: float, e
 
     References
     ----------
-    IEC 60255-149:2013, thermal model differential equation. REFERENCE 2.1.
+    IEC 60255-149:2013, thermal model differential equation. METHODS.md §2.1.
 
     Examples
     --------
-    >>> round(thermal_level(1.5, 1.05, 1800.0, 1212.1), 4)   # the cold operate time of REFERENCE 2.5 reaches 1.0
+    >>> round(thermal_level(1.5, 1.05, 1800.0, 1212.1), 4)   # the cold operate time of METHODS.md §2.5 reaches 1.0
     1.0
     >>> round(thermal_level(0.0, 1.05, 3600.0, 2919.6, 0.9), 4)   # cooling 90 % → 40 % at τc = 60 min
     0.4
@@ -96,7 +96,7 @@ def steady_state_level(current: float, pickup_current: float) -> float:
 
     References
     ----------
-    IEC 60255-149:2013. REFERENCE 2.5 (θ∞ at 0.8 / 1.0 / 1.05 pu with k·I_B = 1.05: 58.05 / 90.70 / 100 %).
+    IEC 60255-149:2013. METHODS.md §2.5 (θ∞ at 0.8 / 1.0 / 1.05 pu with k·I_B = 1.05: 58.05 / 90.70 / 100 %).
 
     Examples
     --------
@@ -119,13 +119,13 @@ def time_constant_from_trip_time(trip_time: float, current: float, pickup_curren
 
     References
     ----------
-    IEC 60255-149:2013 operate-time equation; REFERENCE 2.2 [D].
+    IEC 60255-149:2013 operate-time equation; METHODS.md §2.2 [D].
 
     Examples
     --------
-    >>> round(time_constant_from_trip_time(15.0, 6.0, 1.05), 1)       # REFERENCE 2.5: 482.3 s
+    >>> round(time_constant_from_trip_time(15.0, 6.0, 1.05), 1)       # METHODS.md §2.5: 482.3 s
     482.3
-    >>> round(time_constant_from_trip_time(10.0, 6.0, 1.05, 1.0), 0)  # REFERENCE 2.5: 3410 s
+    >>> round(time_constant_from_trip_time(10.0, 6.0, 1.05, 1.0), 0)  # METHODS.md §2.5: 3410 s
     3410.0
     """
     i2, p2, ip2 = current ** 2, pickup_current ** 2, prior_current ** 2
@@ -143,11 +143,11 @@ def cooling_time(from_level: float, to_level: float, cooling_time_constant: floa
 
     References
     ----------
-    IEC 60255-149:2013 model with the standstill (cooling) constant; REFERENCE 2.1, 2.3.
+    IEC 60255-149:2013 model with the standstill (cooling) constant; METHODS.md §2.1, 2.3.
 
     Examples
     --------
-    >>> round(cooling_time(0.9, 0.4, 3600.0) / 60, 2)         # REFERENCE 2.5: 48.66 min
+    >>> round(cooling_time(0.9, 0.4, 3600.0) / 60, 2)         # METHODS.md §2.5: 48.66 min
     48.66
     >>> cooling_time(0.3, 0.4, 3600.0)
     0.0
@@ -169,11 +169,11 @@ def start_capacity(start_time: float, stall_time: float, time_constant: float) -
 
     References
     ----------
-    REFERENCE 2.3 [D], built on the IEC 60255-149 model.
+    METHODS.md §2.3 [D], built on the IEC 60255-149 model.
 
     Examples
     --------
-    >>> round(start_capacity(5.0, 15.0, 482.3), 4)   # REFERENCE 2.5: 33.68 %
+    >>> round(start_capacity(5.0, 15.0, 482.3), 4)   # METHODS.md §2.5: 33.68 %
     0.3368
     """
     return (1.0 - math.exp(-start_time / time_constant)) / (1.0 - math.exp(-stall_time / time_constant))
@@ -188,11 +188,11 @@ def restart_wait(level_now: float, start_use: float, cooling_time_constant: floa
 
     References
     ----------
-    REFERENCE 2.3 [D][P].
+    METHODS.md §2.3 [D][P].
 
     Examples
     --------
-    >>> round(restart_wait(2 / 3, 1 / 3, 3600.0) / 60, 3)   # REFERENCE 2.5: 3.078 min
+    >>> round(restart_wait(2 / 3, 1 / 3, 3600.0) / 60, 3)   # METHODS.md §2.5: 3.078 min
     3.078
     """
     allow = 1.0 - margin * start_use
@@ -210,7 +210,7 @@ def heat_stored_at_rated_load(stall_time_hot: float, stall_time_cold: float) -> 
 
     References
     ----------
-    REFERENCE 2.2 [P].
+    METHODS.md §2.2 [P].
 
     Examples
     --------

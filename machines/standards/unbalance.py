@@ -22,7 +22,7 @@ def sequence_components(x_a: complex, x_b: complex, x_c: complex) -> tuple[compl
 
     Examples
     --------
-    >>> x0, x1, x2 = sequence_components(0, 1, -1)   # one line open (REFERENCE 5.5: I1 = I2 = 0.5774)
+    >>> x0, x1, x2 = sequence_components(0, 1, -1)   # one line open (METHODS.md §5.5: I1 = I2 = 0.5774)
     >>> round(abs(x1), 4), round(abs(x2), 4)
     (0.5774, 0.5774)
     """
@@ -39,13 +39,13 @@ def voltage_unbalance_factor(v_ab: float, v_bc: float, v_ca: float) -> float:
 
     References
     ----------
-    IEC 60034-1 (negative-sequence voltage component); REFERENCE 5.1, 5.5.
+    IEC 60034-1 (negative-sequence voltage component); METHODS.md §5.1, 5.5.
 
     Examples
     --------
-    >>> round(100 * voltage_unbalance_factor(462.0, 463.0, 455.0), 3)   # REFERENCE 5.5: 1.091 %
+    >>> round(100 * voltage_unbalance_factor(462.0, 463.0, 455.0), 3)   # METHODS.md §5.5: 1.091 %
     1.091
-    >>> round(100 * voltage_unbalance_factor(4160.0, 4160.0, 4000.0), 3)   # REFERENCE 5.5: 2.581 %
+    >>> round(100 * voltage_unbalance_factor(4160.0, 4160.0, 4000.0), 3)   # METHODS.md §5.5: 2.581 %
     2.581
     """
     a, b, c = v_ab, v_bc, v_ca
@@ -70,11 +70,11 @@ def negative_sequence_current_ratio(voltage_unbalance: float, locked_rotor_curre
 
     References
     ----------
-    REFERENCE 5.3 [D] (Z2 ≈ locked-rotor impedance).
+    METHODS.md §5.3 [D] (Z2 ≈ locked-rotor impedance).
 
     Examples
     --------
-    >>> round(negative_sequence_current_ratio(0.02, 6.0), 3)   # REFERENCE 5.5: ≈ 12 %
+    >>> round(negative_sequence_current_ratio(0.02, 6.0), 3)   # METHODS.md §5.5: ≈ 12 %
     0.12
     """
     return locked_rotor_current * voltage_unbalance
@@ -91,13 +91,13 @@ def heating_weight_from_rotor_resistance(locked_rotor_torque: float, rated_slip:
 
     References
     ----------
-    REFERENCE 5.3 [D].
+    METHODS.md §5.3 [D].
 
     Examples
     --------
-    >>> round(heating_weight_from_rotor_resistance(1.75, 0.01, 6.0), 3)   # REFERENCE 5.5: 4.861
+    >>> round(heating_weight_from_rotor_resistance(1.75, 0.01, 6.0), 3)   # METHODS.md §5.5: 4.861
     4.861
-    >>> round(heating_weight_from_rotor_resistance(1.5, 0.008, 6.5), 3)   # REFERENCE 5.5: 4.438
+    >>> round(heating_weight_from_rotor_resistance(1.5, 0.008, 6.5), 3)   # METHODS.md §5.5: 4.438
     4.438
     """
     return locked_rotor_torque / (rated_slip * locked_rotor_current ** 2)
@@ -108,11 +108,11 @@ def heating_weight_175_rule(locked_rotor_current: float) -> float:
 
     References
     ----------
-    REFERENCE 5.3 [F-v]: found in maker literature only, no standard prescribes it.
+    METHODS.md §5.3 [F-v]: found in maker literature only, no standard prescribes it.
 
     Examples
     --------
-    >>> round(heating_weight_175_rule(6.0), 3)   # REFERENCE 5.5: 4.861
+    >>> round(heating_weight_175_rule(6.0), 3)   # METHODS.md §5.5: 4.861
     4.861
     """
     return 175.0 / locked_rotor_current ** 2
@@ -123,11 +123,11 @@ def equivalent_heating_current(positive_sequence: float, negative_sequence: floa
 
     References
     ----------
-    REFERENCE 2.4, 5.3.
+    METHODS.md §2.4, 5.3.
 
     Examples
     --------
-    >>> round(equivalent_heating_current(1.0, 0.1, 6.0), 3)   # REFERENCE 5.5: 1.030
+    >>> round(equivalent_heating_current(1.0, 0.1, 6.0), 3)   # METHODS.md §5.5: 1.030
     1.03
     """
     return math.sqrt(positive_sequence ** 2 + heating_weight * negative_sequence ** 2)
@@ -139,11 +139,11 @@ def derating_from_heating_weight(heating_weight: float, locked_rotor_current: fl
 
     References
     ----------
-    REFERENCE 5.3 [D].
+    METHODS.md §5.3 [D].
 
     Examples
     --------
-    >>> round(derating_from_heating_weight(175 / 36, 6.0, 0.02), 4)   # REFERENCE 5.5: 0.9667
+    >>> round(derating_from_heating_weight(175 / 36, 6.0, 0.02), 4)   # METHODS.md §5.5: 0.9667
     0.9667
     """
     return 1.0 / math.sqrt(1.0 + heating_weight * (locked_rotor_current * voltage_unbalance) ** 2)
@@ -159,11 +159,11 @@ def adiabatic_negative_sequence_constant(locked_rotor_current: float, stall_time
 
     References
     ----------
-    REFERENCE 5.4 [D].
+    METHODS.md §5.4 [D].
 
     Examples
     --------
-    >>> adiabatic_negative_sequence_constant(6.0, 15.0)   # REFERENCE 5.5: 540.0 s
+    >>> adiabatic_negative_sequence_constant(6.0, 15.0)   # METHODS.md §5.5: 540.0 s
     540.0
     """
     return locked_rotor_current ** 2 * stall_time_cold
