@@ -23,8 +23,8 @@ from typing import Any
 
 from machines.errors import InputError, one_line
 from machines.model import (
-    FieldSpec, Grounding, InductionMotor, Instruments, MachineCase, MotorLoad, Ratio, SheetInfo, StudyOptions,
-    Supply, SynchronousGenerator, field_specs, motor_rated_current, validate_case,
+    FieldSpec, Grounding, InductionMotor, Instruments, MachineCase, MotorLoad, Ratio, RelaySteps, SheetInfo,
+    StudyOptions, Supply, SynchronousGenerator, field_specs, motor_rated_current, validate_case,
 )
 from machines.units import KINDS, convert, parse_quantity
 
@@ -32,7 +32,7 @@ FORMAT = "relaywright.machine/1"
 MAX_FILE_BYTES = 1_000_000
 MACHINE_KINDS = {"induction-motor": InductionMotor, "synchronous-generator": SynchronousGenerator}
 SECTIONS = {"sheet": SheetInfo, "study": StudyOptions, "machine": None, "load": MotorLoad, "supply": Supply,
-            "grounding": Grounding, "instruments": Instruments}
+            "grounding": Grounding, "instruments": Instruments, "relay": RelaySteps}
 TOP_KEYS = ("format", *SECTIONS, "overrides")
 NEMA_LETTERS = tuple("ABCDEFGHJKLMNPRSTUV")
 
@@ -233,6 +233,7 @@ def case_from_dict(data: Any) -> tuple[MachineCase, list[str]]:
         supply=Supply(**_section(Supply, data["supply"], "supply")),
         grounding=Grounding(**_section(Grounding, data["grounding"], "grounding")),
         instruments=Instruments(**_section(Instruments, data["instruments"], "instruments")),
+        relay=RelaySteps(**_section(RelaySteps, data.get("relay", {}), "relay")),
         overrides=tuple(sorted(over)), entered=data,
     )
     return case, validate_case(case)

@@ -146,6 +146,36 @@ class StudyOptions:
 
 
 @dataclass(frozen=True)
+class RelaySteps:
+    """The setting steps of the relay that will hold the settings: every setting is rounded to one of these.
+
+    Steps are relay-side: a current or voltage step applies to the CT or VT secondary value where a transformer
+    applies. The defaults are steps most numerical motor and generator relays accept (common practice, no
+    published source); a relay with coarser steps is described here so that every check and test point runs on
+    values the relay can actually hold.
+    """
+
+    current_step: float = spec("current", "A", default="0.01 A", lo=1e-4, hi=100.0, value_default=0.01,
+                               help="step of current settings, relay side")
+    voltage_step: float = spec("voltage", "V", default="0.1 V", lo=1e-3, hi=1000.0, value_default=0.1,
+                               help="step of voltage settings, relay side")
+    time_step: float = spec("time", "s", default="0.01 s", lo=1e-3, hi=60.0, value_default=0.01,
+                            help="step of time delays")
+    time_constant_step: float = spec("time", "min", default="0.1 min", lo=0.1, hi=3600.0, value_default=6.0,
+                                     help="step of thermal time constants")
+    frequency_step: float = spec("frequency", "Hz", default="0.01 Hz", lo=1e-3, hi=1.0, value_default=0.01,
+                                 help="step of frequency settings")
+    per_unit_step: float = spec("per_unit", "pu", default="0.01 pu", lo=1e-4, hi=1.0, value_default=0.01,
+                                help="step of per-unit and ratio settings (levels, slopes, V/Hz)")
+    impedance_step: float = spec("impedance", "ohm", default="0.01 ohm", lo=1e-4, hi=100.0, value_default=0.01,
+                                 help="step of impedance settings, relay side")
+    power_step: float = spec("active_power", "W", default="0.1 W", lo=1e-3, hi=1000.0, value_default=0.1,
+                             help="step of power settings, relay side (three-phase)")
+    dial_step: float = spec("per_unit", "", default="0.01", lo=1e-4, hi=1.0, value_default=0.01,
+                            help="step of time dials and time multipliers")
+
+
+@dataclass(frozen=True)
 class FrequencyBand:
     """A maker's off-frequency band: from ``low`` to ``high`` [Hz], ``allowed`` accumulated time [s]."""
 
@@ -562,6 +592,7 @@ class MachineCase:
     grounding: Grounding
     instruments: Instruments
     load: MotorLoad | None = None
+    relay: RelaySteps = field(default_factory=RelaySteps)
     overrides: tuple[tuple[str, str], ...] = ()
     entered: dict = field(default_factory=dict, compare=False, hash=False, repr=False)
 

@@ -31,6 +31,10 @@ class Setting:
 
     ``value`` is a float (SI), a bool, a string (curve names) or a list of dicts (stages). ``label`` is the
     name printed on the sheet ("Pickup current"); ``note`` a short remark ("upper bound of code range").
+    ``step`` is the relay's setting step, relay-side: the ``secondary`` value where an instrument transformer
+    applies (else ``value``) is a whole multiple of it. ``keyed`` is False for an entry that is not keyed into the
+    relay (equipment sized by the study, such as a grounding resistor, or what a setting achieves, such as the
+    share of a winding covered).
     """
 
     value: Any
@@ -40,6 +44,8 @@ class Setting:
     secondary_unit: str = ""
     label: str = ""
     note: str = ""
+    step: float | None = None
+    keyed: bool = True
 
     def to_json(self) -> dict:
         out: dict[str, Any] = {"value": _clean(self.value), "unit": self.unit}
@@ -51,6 +57,10 @@ class Setting:
             out["label"] = self.label
         if self.note:
             out["note"] = self.note
+        if self.step is not None:
+            out["step"] = _clean(self.step)
+        if not self.keyed:
+            out["keyed"] = False
         return out
 
 
@@ -71,7 +81,26 @@ class TestPoint:
 
     ``expected_time`` None means "must not operate" (e.g. a pickup test just below the setting).
     ``tolerance_time`` is the half-width of the accepted time band [s]; ``tolerance_rule`` says how it was got.
+
+    What to inject, relay-side, for a three-phase test set:
+
+    - ``id``: the test point's number as the sheet prints it, ``"<function id>.<n>"`` (given by the study).
+    - ``input``: the relay input under test: ``"phase"`` (phase CTs/VTs), ``"ground"`` (core-balance or residual
+      earth-fault input), ``"neutral"`` (neutral CT or neutral VT of a generator), ``"differential"`` (one side of
+      a differential zone).
+    - ``phases``: three phasors ``{"magnitude", "angle"}`` (A-B-C, angles in degrees) of the quantity in
+      ``applied_unit`` (amperes or volts, phase-to-neutral for voltages); for a single-channel input (ground,
+      neutral) the first phasor is the channel and the other two are zero.
+    - ``voltage_phases``: the phase-to-neutral voltages that go with a current test (power, impedance, restrained
+      overcurrent, or healthy voltage), or None.
+    - ``current_phases``: the phase currents that go with a voltage or frequency test, or None.
+    - ``frequency``: the injection frequency when it is not the system's [Hz], or None.
+    - ``duration``: how long to inject a "must not operate" test, or a test longer than the usual margin [s].
+    - ``prefault``: the initial state to inject before the test, as phasors (``{"phases": [...],
+      "voltage_phases": [...]}``), or None for no pre-test injection (cold replica, de-energised).
     """
+
+    __test__ = False  # a record type, not a pytest test class
 
     quantity: str
     applied: float
@@ -84,6 +113,14 @@ class TestPoint:
     applied_primary_unit: str = ""
     description: str = ""
     tolerance_rule: str = ""
+    id: str = ""
+    input: str = "phase"
+    phases: list[dict] | None = None
+    voltage_phases: list[dict] | None = None
+    current_phases: list[dict] | None = None
+    frequency: float | None = None
+    duration: float | None = None
+    prefault: dict | None = None
 
     def to_json(self) -> dict:
         return {k: _clean(v) for k, v in dataclasses.asdict(self).items()}
@@ -178,6 +215,9 @@ class SettingsRecord:
     drawings: list[Drawing] = field(default_factory=list)
     sheet: dict[str, Any] = field(default_factory=dict)
     inputs: dict[str, Any] = field(default_factory=dict)
+    #: motors: the simulated starts the sheet draws and a test set can play back, each
+    #: ``{"label", "voltage" [pu], "time" [s], "current" [A primary, RMS], "accelerates"}``
+    start_profiles: list[dict[str, Any]] = field(default_factory=list)
 
     def all_checks(self) -> list[tuple[str, Check]]:
         """Every finding with the id of the function it belongs to ('' for machine-wide), fails first."""
@@ -212,6 +252,7 @@ class SettingsRecord:
             "drawings": [d.to_json() for d in drawings],
             "sheet": self.sheet,
             "inputs": self.inputs,
+            "start_profiles": _clean(self.start_profiles),
         }
 
     def dumps(self, indent: int | None = 2) -> str:

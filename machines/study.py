@@ -26,6 +26,7 @@ def run_study(case: MachineCase, warnings: list[str] | tuple[str, ...] = ()) -> 
     ctx = family.prepare(case)
     functions = [fs for rule in family.RULES if (fs := rule(ctx)) is not None]
     _check_overrides(case, ctx.used_overrides, functions)
+    _number_and_step(functions, ctx.steps)
     checks = [Check("warn", w) for w in warnings] + list(ctx.extras.get("checks", []))
     return SettingsRecord(
         tag=case.sheet.tag,
@@ -39,7 +40,18 @@ def run_study(case: MachineCase, warnings: list[str] | tuple[str, ...] = ()) -> 
         drawings=family.drawings(ctx, functions),
         sheet=sheet_data(case),
         inputs=entered_inputs(case),
+        start_profiles=list(ctx.extras.get("start_profiles", [])),
     )
+
+
+def _number_and_step(functions, steps: dict[tuple[str, str], float]) -> None:
+    """Number every test point as the sheet prints it (``"49.1"``) and give every rounded setting its step."""
+    for f in functions:
+        for i, tp in enumerate(f.test_points, 1):
+            tp.id = f"{f.id}.{i}"
+        for key, setting in f.settings.items():
+            if setting.step is None and (f.id, key) in steps:
+                setting.step = steps[(f.id, key)]
 
 
 def _check_overrides(case: MachineCase, used: set[str], functions) -> None:

@@ -30,3 +30,12 @@ def test_readme_states_the_job_and_the_two_setup_commands():
 def test_readme_carries_the_safety_caution():
     text = (ROOT / "README.md").read_text("utf-8")
     assert re.search(r"licensed engineer", text) and "local codes" in text and "tested" in text
+
+
+def test_glossary_is_the_generated_one():
+    # the glossary is generated from the field specs: `python -m machines.glossary DEVELOPERS.md` after adding a key
+    from machines.glossary import END, START, glossary_markdown
+
+    text = (ROOT / "DEVELOPERS.md").read_text("utf-8")
+    block = text.split(START, 1)[1].split(END, 1)[0]
+    assert block.strip() == glossary_markdown().strip(), "run: python -m machines.glossary DEVELOPERS.md"

@@ -13,7 +13,7 @@ from machines.files import case_from_dict, load_case
 from machines.protection import generator
 from machines.study import run_study
 
-from conftest import EXAMPLES
+from conftest import EXAMPLES, FINE_RELAY
 
 BASE = {
     "format": "relaywright.machine/1",
@@ -30,6 +30,7 @@ BASE = {
     "grounding": {"method": "distribution-transformer", "system_capacitance": "0.05 uF",
                   "transformer_ratio": "13800/240 V"},
     "instruments": {"phase_ct": "5000/5 A", "vt": "14400/120 V", "neutral_vt": "13800/240 V"},
+    "relay": FINE_RELAY,
 }
 
 

@@ -143,7 +143,7 @@ def test_46_directly_cooled_above_800_mva():
     record = _large_direct()
     assert record.derived["negative_sequence_k"].value == pytest.approx(8.75)
     s = record.function("46").settings
-    assert s["continuous_i2"].value == pytest.approx(0.05833, rel=5e-4)
+    assert s["continuous_i2"].value == pytest.approx(0.05833, abs=1e-4)  # rounded down to the 0.0001 pu step
     assert s["k_constant"].value == pytest.approx(0.9 * 8.75)
     # IEC 60034-1 at 1000 MVA: K = 5 s (METHODS.md §6.2)
     assert _large_direct(**{"study.practice": "IEC"}).derived["negative_sequence_k"].value == pytest.approx(5.0)
@@ -176,7 +176,7 @@ def test_59n_reference_case():
     assert d["neutral_voltage"].secondary == pytest.approx(138.6, rel=5e-4)
     # METHODS.md §7.3: 59N at 5 % → 6.928 V secondary, 95 % coverage
     assert s["pickup_voltage"].secondary == pytest.approx(6.928, rel=5e-4)
-    assert s["coverage"].value == pytest.approx(0.95)
+    assert s["coverage"].value == pytest.approx(0.95, abs=1e-3)  # achieved by the pickup rounded to the step
     # METHODS.md §7.3: faults at 10 % / 50 % from the neutral give 13.86 / 69.28 V; both trip
     applied = sorted(t.applied for t in record.function("59N").test_points if "neutral" in t.description)
     assert applied == pytest.approx([13.86, 69.28], rel=5e-4)
@@ -192,8 +192,8 @@ def test_installed_resistor_too_large_warns():
 def test_27tn_from_third_harmonic():
     # METHODS.md §7.1 (value from memory): 27TN at 50 % of the lowest healthy V3N; 300 V → 150 V, 13800/240 neutral VT
     s = study().function("27TN").settings
-    assert s["pickup_voltage"].value == pytest.approx(150.0)
-    assert s["pickup_voltage"].secondary == pytest.approx(150.0 * 240 / 13800, rel=1e-12)
+    assert s["pickup_voltage"].value == pytest.approx(150.0, abs=0.5 * 0.001 * 13800 / 240)  # half a 1 mV step
+    assert s["pickup_voltage"].secondary == pytest.approx(150.0 * 240 / 13800, abs=0.0005)
 
 
 def test_no_third_harmonic_data_leaves_27tn_out_with_warning():
@@ -238,7 +238,8 @@ def test_reverse_power_measuring_range():
     fs = study().function("32")
     assert "warn" in _statuses(fs, "0.68%")
     maker = study(**{"machine.motoring_power": "50 kW"}).function("32")
-    assert maker.settings["pickup_power"].value == pytest.approx(25e3)
+    # half the maker's 50 kW, rounded down to the 1 mW secondary step (CTR·VTR = 120 000)
+    assert maker.settings["pickup_power"].value == pytest.approx(25e3, abs=0.001 * 5000 / 5 * 14400 / 120)
     assert "fail" in _statuses(maker, "0.02%")  # 0.2083 W secondary: below the measuring chain
 
 
@@ -250,14 +251,15 @@ def test_vhz_common_base():
     # 1.05 pu is 1.05 × 13.2/13.8 = 1.004 pu on the generator base and governs (1.05 pu of 13.8 kV = 1.098 on it)
     fs = study(**{"supply.transformer_lv_voltage": "13.2 kV"}).function("24")
     s = fs.settings
-    assert s["alarm_pickup"].value == pytest.approx(1.05 * 13.2 / 13.8, rel=1e-9)
+    assert s["alarm_pickup"].value == pytest.approx(1.05 * 13.2 / 13.8, abs=1e-4)  # rounded down to the step
     assert 1.05 * 13.8 / 13.2 == pytest.approx(1.098, rel=5e-4)
     assert "warn" in _statuses(fs, "below the 1.05 pu")
     # the generator governs when the transformer matches; METHODS.md §9.3: trip ≈ 1.10 pu
     s2 = study().function("24").settings
     assert (s2["alarm_pickup"].value, s2["trip_pickup"].value) == pytest.approx((1.05, 1.10))
-    # relay side in V/Hz on the VT secondary: 1.10 × (13800/120) / 60 (14400/120 VT)
-    assert s2["trip_pickup"].secondary == pytest.approx(1.10 * 13800 / 120 / 60, rel=1e-12)
+    # the relay takes V/Hz in pu; the V/Hz on the VT secondary, 1.10 × (13800/120) / 60 = 2.108 (14400/120 VT), is
+    # shown beside it
+    assert s2["trip_pickup"].secondary is None and "2.108 V/Hz" in s2["trip_pickup"].note
 
 
 # ---------------------------------------------------------------------------------------------------- 49
@@ -268,12 +270,13 @@ def test_49_time_constant_fits_c50_13():
     fs = study().function("49")
     tau = fs.settings["heating_time_constant"].value
     # [derived] the 116 % / 120 s point limits τ: 120 / ln((1.16² − 1)/(1.16² − 1.05²)) = 341.1 s
-    assert tau == pytest.approx(120 / math.log((1.16 ** 2 - 1) / (1.16 ** 2 - 1.05 ** 2)), rel=1e-9)
+    fit = 120 / math.log((1.16 ** 2 - 1) / (1.16 ** 2 - 1.05 ** 2))
+    assert fit - 0.1 < tau <= fit  # rounded down to the 0.1 s step: never slower than the capability
     assert tau == pytest.approx(341.1, rel=5e-4)
     assert all(c.status == "ok" for c in fs.checks if "armature" in c.message)
     hot = [t for t in fs.test_points if t.initial_state.startswith("hot")]
     assert len(hot) >= 3
-    assert hot[0].expected_time == pytest.approx(thermal_operate_time(1.3, 1.05, tau, 1.0), rel=1e-9)
+    assert hot[0].expected_time == pytest.approx(thermal_operate_time(1.3, 1.05, tau, 1.0), rel=1e-3)
 
 
 def test_49_slow_time_constant_fails():

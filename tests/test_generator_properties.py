@@ -93,10 +93,10 @@ def test_study_of_any_plausible_generator(data):
     s40 = record.function("40").settings
     factor = case_from_dict(data)[0].instruments.phase_ct.factor / case_from_dict(data)[0].instruments.vt.factor
     for key in ("zone1_offset", "zone2_diameter"):
-        assert math.isclose(s40[key].secondary, s40[key].value * factor, rel_tol=1e-12)
-    # 59N covers 95 % when it applies (METHODS.md §7.1)
+        assert math.isclose(s40[key].secondary, s40[key].value * factor, rel_tol=1e-9)
+    # 59N covers at least 95 % when it applies (METHODS.md §7.1): the pickup is rounded down to the relay step
     if record.function("59N") is not None:
-        assert math.isclose(record.function("59N").settings["coverage"].value, 0.95)
+        assert record.function("59N").settings["coverage"].value >= 0.95 - 1e-9
     # drawings: positive, finite points on logarithmic axes
     for d in record.drawings:
         for s in d.series:

@@ -71,9 +71,10 @@ def settings(ctx: StudyContext) -> FunctionSettings:
         checks.append(Check("warn", "No differential CTs given (instruments.differential_ct): the phase CT ratio is "
                                     "assumed at both ends of the winding."))
     pickup, p_src = ctx.choose(FID, "minimum_pickup", MIN_PICKUP_FRACTION * ct.primary, "current", "A",
-                               "common-practice")
+                               "common-practice", via=ct)
     slope, s_src = ctx.choose(FID, "slope", SLOPE, "per_unit", "", "common-practice")
-    high, h_src = ctx.choose(FID, "unrestrained_pickup", UNRESTRAINED * ir, "current", "A", "common-practice")
+    high, h_src = ctx.choose(FID, "unrestrained_pickup", UNRESTRAINED * ir, "current", "A", "common-practice",
+                             via=ct)
     share = pickup / ir
     if 0.05 <= share <= 0.30:
         checks.append(Check("ok", f"Minimum pickup {pickup:.4g} A is {share:.1%} of rated current."))

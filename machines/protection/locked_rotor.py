@@ -95,7 +95,7 @@ def settings(ctx: StudyContext) -> FunctionSettings:
                f"switch supervises a {delay0:.1f} s locked-rotor timer; the acceleration itself is left to the "
                "thermal replica and the maker's acceleration thermal-limit curve")
     switch, sw_src = ctx.choose(FID, "speed_switch_required", switch0, "boolean", "", "common-practice")
-    delay, d_src = ctx.choose(FID, "time_delay", delay0, "time", "s", "common-practice")
+    delay, d_src = ctx.choose(FID, "time_delay", delay0, "time", "s", "common-practice", rounding="up")
     if not b.start_min.accelerates:
         checks.append(Check("warn", "The motor does not accelerate at the minimum starting voltage, so no stall delay "
                                     "can separate a start from a stall; the delay shown is the speed-switch-supervised "

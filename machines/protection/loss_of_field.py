@@ -9,6 +9,7 @@ from __future__ import annotations
 
 import math
 
+from machines.model import Ratio
 from machines.protection.base import StudyContext, timed_test_point
 from machines.record import Check, FunctionSettings, Setting
 from machines.standards import generator_capability as cap
@@ -31,11 +32,12 @@ def settings(ctx: StudyContext) -> FunctionSettings:
     zb, factor = basis.base_impedance, basis.impedance_factor
     checks: list[Check] = []
     offset = m.xd_transient / 2.0 * zb
-    z1o, z1o_src = ctx.choose(FID, "zone1_offset", offset, "impedance", "ohm", "standard")
-    z1d, z1d_src = ctx.choose(FID, "zone1_diameter", ZONE1_DIAMETER * zb, "impedance", "ohm", "standard")
+    ohms = None if factor is None else Ratio(1.0, factor)  # relay-side ohms = primary ohms × CTR/VTR
+    z1o, z1o_src = ctx.choose(FID, "zone1_offset", offset, "impedance", "ohm", "standard", via=ohms)
+    z1d, z1d_src = ctx.choose(FID, "zone1_diameter", ZONE1_DIAMETER * zb, "impedance", "ohm", "standard", via=ohms)
     z1t, z1t_src = ctx.choose(FID, "zone1_time_delay", ZONE1_DELAY, "time", "s", "standard")
-    z2o, z2o_src = ctx.choose(FID, "zone2_offset", offset, "impedance", "ohm", "standard")
-    z2d, z2d_src = ctx.choose(FID, "zone2_diameter", m.xd * zb, "impedance", "ohm", "standard")
+    z2o, z2o_src = ctx.choose(FID, "zone2_offset", offset, "impedance", "ohm", "standard", via=ohms)
+    z2d, z2d_src = ctx.choose(FID, "zone2_diameter", m.xd * zb, "impedance", "ohm", "standard", via=ohms)
     z2t, z2t_src = ctx.choose(FID, "zone2_time_delay", ZONE2_DELAY, "time", "s", "standard")
     if z2d <= z1d:
         checks.append(Check("warn", f"Zone 2 diameter {z2d:.4g} Ω is not larger than zone 1's {z1d:.4g} Ω "

@@ -32,7 +32,7 @@ def settings(ctx: StudyContext) -> FunctionSettings | None:
         return None
     ct = ctx.case.instruments.differential_ct or ctx.ct
     checks: list[Check] = []
-    pickup, p_src = ctx.choose(FID, "pickup_current", PICKUP * b.flc, "current", "A", "standard")
+    pickup, p_src = ctx.choose(FID, "pickup_current", PICKUP * b.flc, "current", "A", "standard", via=ct)
     slope, s_src = ctx.choose(FID, "slope", SLOPE, "per_unit", "", "standard")
     if ctx.case.instruments.differential_ct is None:
         checks.append(Check("warn", "87M is recommended but no differential CTs are given "

@@ -61,7 +61,7 @@ def settings(ctx: StudyContext) -> FunctionSettings:
         p0, why = max(floor, 0.05 * b.flc), "5 % of FLC (no earth-fault current given)"
     if p0 == floor and floor > 0:
         why = f"twice the circuit's own charging current {own:.2f} A"
-    pickup, p_src = ctx.choose(FID, "pickup_current", p0, "current", "A", "common-practice")
+    pickup, p_src = ctx.choose(FID, "pickup_current", p0, "current", "A", "common-practice", via=ct)
     delay, d_src = ctx.choose(FID, "time_delay", ALARM_DELAY if alarm_only else TRIP_DELAY, "time", "s",
                               "common-practice")
     action, a_src = ctx.choose(FID, "action", "alarm" if alarm_only else "trip", "text", "", "common-practice")

@@ -35,13 +35,14 @@ def settings(ctx: StudyContext) -> FunctionSettings:
     cap = basis.unbalance
     cap_src = basis.unbalance_setting_source
 
-    cont, cont_src = ctx.choose(FID, "continuous_i2", cap.continuous, "per_unit", "", cap_src)
-    pickup, pick_src = ctx.choose(FID, "pickup_current", cont * ir, "current", "A", cont_src)
+    cont, cont_src = ctx.choose(FID, "continuous_i2", cap.continuous, "per_unit", "", cap_src, rounding="down")
+    pickup, pick_src = ctx.choose(FID, "pickup_current", cont * ir, "current", "A", cont_src, rounding="down")
     if ctx.case.override(f"{FID}.pickup_current") is not None:
         cont, cont_src = pickup / ir, "override"
-    k_set, k_src = ctx.choose(FID, "k_constant", K_FRACTION * cap.k, "time", "s", "common-practice")
+    k_set, k_src = ctx.choose(FID, "k_constant", K_FRACTION * cap.k, "time", "s", "common-practice",
+                               rounding="down", step_kind="dial")
     alarm, alarm_src = ctx.choose(FID, "alarm_pickup_current", ALARM_FRACTION * pickup, "current", "A",
-                                  "common-practice")
+                                  "common-practice", rounding="down")
     alarm_delay, ad_src = ctx.choose(FID, "alarm_time_delay", ALARM_DELAY, "time", "s", "common-practice")
     tmin, tmin_src = ctx.choose(FID, "minimum_time", MINIMUM_TIME, "time", "s", "common-practice")
     tmax, tmax_src = ctx.choose(FID, "maximum_time", MAXIMUM_TIME, "time", "s", "common-practice")

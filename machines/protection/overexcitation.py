@@ -37,10 +37,12 @@ def settings(ctx: StudyContext) -> FunctionSettings:
     g_limit = m.vhz_limit
     limit = min(g_limit, t_limit)
     governs = "generator" if g_limit <= t_limit else "step-up transformer"
-    alarm, a_src = ctx.choose(FID, "alarm_pickup", limit, "per_unit", "", "standard")
-    trip, t_src = ctx.choose(FID, "trip_pickup", limit + TRIP1_STEP, "per_unit", "", "standard")
+    alarm, a_src = ctx.choose(FID, "alarm_pickup", limit, "per_unit", "", "standard", rounding="down")
+    trip, t_src = ctx.choose(FID, "trip_pickup", limit + TRIP1_STEP, "per_unit", "", "standard",
+                              rounding="down")
     delay, d_src = ctx.choose(FID, "time_delay", TRIP1_DELAY, "time", "s", "standard")
-    trip2, t2_src = ctx.choose(FID, "trip2_pickup", limit + TRIP2_STEP, "per_unit", "", "standard")
+    trip2, t2_src = ctx.choose(FID, "trip2_pickup", limit + TRIP2_STEP, "per_unit", "", "standard",
+                                rounding="down")
     delay2, d2_src = ctx.choose(FID, "trip2_time_delay", TRIP2_DELAY, "time", "s", "standard")
     adelay, ad_src = ctx.choose(FID, "alarm_time_delay", ALARM_DELAY, "time", "s", "standard")
     checks.append(Check("ok", f"Limits on the generator base: generator {g_limit:.4g} pu, transformer "
@@ -67,8 +69,10 @@ def settings(ctx: StudyContext) -> FunctionSettings:
     f0 = m.frequency
 
     def vhz(value: float, src: str, label: str, note: str = "") -> Setting:
-        return Setting(value, "pu V/Hz", src, secondary=value * v_sec / f0, secondary_unit="V/Hz", label=label,
-                       note=note)
+        # the relay takes V/Hz in per unit of its nominal (VT secondary at rated frequency); the volts per hertz on
+        # the VT secondary are shown beside it
+        vhz_sec = f"{value * v_sec / f0:.4g} V/Hz on the VT secondary"
+        return Setting(value, "pu V/Hz", src, label=label, note=f"{note}; {vhz_sec}" if note else vhz_sec)
 
     values = {
         "alarm_pickup": vhz(alarm, a_src, "Alarm pickup", f"governing limit ({governs})"),

@@ -11,6 +11,7 @@ from __future__ import annotations
 
 import math
 
+from machines.model import Ratio
 from machines.protection.base import StudyContext, timed_test_point
 from machines.record import Check, FunctionSettings, Setting
 from machines.standards.generator_capability import motoring_power_fraction, secondary_power
@@ -34,8 +35,9 @@ def settings(ctx: StudyContext) -> FunctionSettings:
         motoring, mot_src = typical * basis.rated_power, "standard"
         mot_note = f"{typical:.1%} of rated power, typical for a {m.prime_mover.replace('-', ' ')} (handbook range)"
     ctx.derived["motoring_power"] = Setting(motoring, "W", mot_src, label="Motoring power", note=mot_note)
+    watts = None if basis.vt is None else Ratio(basis.ct.factor * basis.vt.factor, 1.0)  # P_sec = P / (CTR·VTR)
     pickup, p_src = ctx.choose(FID, "pickup_power", PICKUP_FRACTION * motoring, "active_power", "W",
-                               "common-practice")
+                               "common-practice", via=watts, rounding="down")
     delay, d_src = ctx.choose(FID, "time_delay", UNSUPERVISED_DELAY, "time", "s", "common-practice")
     sdelay, sd_src = ctx.choose(FID, "supervised_time_delay", SUPERVISED_DELAY, "time", "s", "common-practice")
     if pickup <= 0:

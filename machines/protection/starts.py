@@ -82,8 +82,10 @@ def settings(ctx: StudyContext) -> FunctionSettings:
                                        label="Rotor heat of one start / cold stall heat"),
     }
     if mg10:
-        s["starts_per_hour"] = Setting(mg10[0], "1/h", "standard", label="Starts per hour (NEMA MG 10 Table 2-3)",
-                                       note=f"rest ≥ {mg10[1]:.0f} s")
+        # a relay counts whole starts: the table's figure rounded down (at least one)
+        s["starts_per_hour"] = Setting(float(max(1, math.floor(mg10[0] + 1e-9))), "1/h", "standard",
+                                       label="Starts per hour (NEMA MG 10 Table 2-3)", step=1.0,
+                                       note=f"table {mg10[0]:.2f}/h, rest ≥ {mg10[1]:.0f} s")
         basis_mg10 = f" NEMA MG 10 allows {mg10[0]:.2f} starts per hour with ≥ {mg10[1]:.0f} s rest."
     else:
         basis_mg10 = " NEMA MG 10 Table 2-3 does not apply (2–6 poles, up to 250 hp only)."

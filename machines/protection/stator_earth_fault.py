@@ -89,7 +89,7 @@ def _resistor(ctx: StudyContext, checks: list[Check]) -> tuple[float | None, dic
     out["grounding_resistor"] = Setting(r_n, "ohm", src, secondary=r_n / (n * n) if n != 1 else None,
                                         secondary_unit="ohm" if n != 1 else "", label=label,
                                         note="secondary: on the grounding transformer's secondary"
-                                        if n != 1 else "in the neutral")
+                                        if n != 1 else "in the neutral", keyed=False)
     return r_n, out
 
 
@@ -127,12 +127,15 @@ def neutral_overvoltage(ctx: StudyContext) -> FunctionSettings | None:
     if not 0.0 < coverage < 1.0:
         raise InputError("overrides.59N.coverage", f"expected a fraction of the winding between 0 and 1, got "
                                                    f"{coverage:g}")
-    pickup, p_src = ctx.choose("59N", "pickup_voltage", gnd.neutral_pickup_for_coverage(m.rated_voltage, coverage),
-                               "voltage", "V", cov_src)
-    if case.override("59N.pickup_voltage") is not None:
-        coverage, cov_src = gnd.coverage_for_neutral_pickup(m.rated_voltage, pickup), "derived"
-    delay, d_src = ctx.choose("59N", "time_delay", NEUTRAL_DELAY, "time", "s", "common-practice")
     ratio, ratio_from = _neutral_ratio(ctx)
+    # rounded down: a lower pickup keeps at least the coverage asked for
+    pickup, p_src = ctx.choose("59N", "pickup_voltage", gnd.neutral_pickup_for_coverage(m.rated_voltage, coverage),
+                               "voltage", "V", cov_src, via=ratio, rounding="down")
+    # the coverage is what the rounded (or overridden) pickup achieves; it is not keyed into the relay
+    coverage = gnd.coverage_for_neutral_pickup(m.rated_voltage, pickup)
+    cov_src = "derived" if case.override("59N.pickup_voltage") is not None else cov_src
+    ctx.steps.pop(("59N", "coverage"), None)
+    delay, d_src = ctx.choose("59N", "time_delay", NEUTRAL_DELAY, "time", "s", "common-practice")
     if ratio is None:
         checks.append(Check("warn", "No neutral VT or grounding-transformer ratio: the 59N pickup is given in "
                                     "primary neutral volts only."))
@@ -155,7 +158,7 @@ def neutral_overvoltage(ctx: StudyContext) -> FunctionSettings | None:
     values["pickup_voltage"] = voltage_setting(pickup, ratio, p_src, "Pickup (neutral voltage)",
                                                f"{pickup / v_ln:.1%} of V_LN" + (f"; secondary via {ratio_from}"
                                                                                  if ratio else ""))
-    values["coverage"] = Setting(coverage, "pu", cov_src, label="Winding covered from the terminals")
+    values["coverage"] = Setting(coverage, "pu", cov_src, label="Winding covered from the terminals", keyed=False)
     values["time_delay"] = Setting(delay, "s", d_src, label="Time delay")
     sec = (lambda v: v) if ratio is None else ratio.to_secondary
     unit_note = "V" if ratio else "V (primary)"
@@ -165,7 +168,7 @@ def neutral_overvoltage(ctx: StudyContext) -> FunctionSettings | None:
                               primary_unit="V", description="120 % of pickup: trips after the delay")]
     for x in (0.05, 0.10, 0.50):
         v = gnd.neutral_voltage_for_fault(m.rated_voltage, x)
-        if v > pickup:
+        if v > 1.1 * pickup:  # a simulated fault only where it trips beyond the relay's pickup tolerance
             tests.append(timed_test_point("neutral voltage", sec(v), unit_note, delay, applied_primary=v,
                                           primary_unit="V",
                                           description=f"simulated fault {x:.0%} of the winding from the neutral"))
@@ -191,11 +194,12 @@ def third_harmonic(ctx: StudyContext) -> FunctionSettings | None:
         return None
     checks: list[Check] = []
     v3 = m.third_harmonic_neutral_min
-    pickup, p_src = ctx.choose("27TN", "pickup_voltage", THIRD_HARMONIC_FRACTION * v3, "voltage", "V", "standard")
+    ratio, ratio_from = _neutral_ratio(ctx)
+    pickup, p_src = ctx.choose("27TN", "pickup_voltage", THIRD_HARMONIC_FRACTION * v3, "voltage", "V", "standard",
+                               via=ratio)
     delay, d_src = ctx.choose("27TN", "time_delay", THIRD_HARMONIC_DELAY, "time", "s", "common-practice")
     sup, s_src = ctx.choose("27TN", "supervision_voltage", SUPERVISION_VOLTAGE * m.rated_voltage, "voltage", "V",
                             "common-practice")
-    ratio, ratio_from = _neutral_ratio(ctx)
     vt = case.instruments.vt
     if pickup < v3:
         checks.append(Check("ok", f"Pickup {pickup:.4g} V is {pickup / v3:.0%} of the lowest healthy third-harmonic "
@@ -256,7 +260,8 @@ def neutral_overcurrent(ctx: StudyContext) -> FunctionSettings | None:
         checks.append(Check("warn", "No earth-fault current limit (grounding.fault_current_limit): pickup set from "
                                     "the rated current; coverage of the winding cannot be judged."))
     curve = "IEEE-VI" if case.study.practice == "IEEE" else "IEC-VI"
-    pickup, p_src = ctx.choose("51N", "pickup_current", NEUTRAL_OC_FRACTION * i_g, "current", "A", "common-practice")
+    pickup, p_src = ctx.choose("51N", "pickup_current", NEUTRAL_OC_FRACTION * i_g, "current", "A", "common-practice",
+                               via=ct)
     curve, c_src = ctx.choose("51N", "curve", curve, "text", "", "standard")
     if curve not in CURVES:
         raise InputError("overrides.51N.curve", f"expected one of {', '.join(CURVES)}, got {curve!r}")
@@ -265,7 +270,7 @@ def neutral_overcurrent(ctx: StudyContext) -> FunctionSettings | None:
     tms0 = time_multiplier_for(NEUTRAL_OC_TARGET, m_at_fault, curve) if m_at_fault > 1.0 else 1.0
     tms, t_src = ctx.choose("51N", mult_key, tms0, "per_unit", "", "common-practice")
     hs, hs_src = ctx.choose("51N", "definite_pickup_current", HIGH_SET_FRACTION * i_g, "current", "A",
-                            "common-practice")
+                            "common-practice", via=ct)
     hsd, hsd_src = ctx.choose("51N", "definite_time_delay", HIGH_SET_DELAY, "time", "s", "common-practice")
     coverage = max(0.0, 1.0 - pickup / i_g)
     if coverage >= 0.85:

@@ -51,7 +51,7 @@ def settings(ctx: StudyContext) -> FunctionSettings:
     m = case.machine
     maker_tau = m.heating_time_constant
     tau, tau_src = ctx.choose(FID, "heating_time_constant", maker_tau or tau0, "time", "s",
-                              "maker-data" if maker_tau else "standard")
+                              "maker-data" if maker_tau else "standard", rounding="down")
     tauc, tauc_src = ctx.choose(FID, "cooling_time_constant", m.cooling_time_constant or tau, "time", "s",
                                 "maker-data" if m.cooling_time_constant else
                                 "common-practice" if tau_src != "override" else "override")

@@ -99,7 +99,7 @@ def settings(ctx: StudyContext) -> FunctionSettings:
                                             "by 51LR alone. Ask the maker for the acceleration thermal limit."))
     else:
         tau0, t_src, t_basis = 1800.0, "common-practice", "a 30 min default (the fit needs FLC < pickup < I_LR)"
-    tau, t_src = ctx.choose(FID, "heating_time_constant", tau0, "time", "s", t_src)
+    tau, t_src = ctx.choose(FID, "heating_time_constant", tau0, "time", "s", t_src, rounding="down")
     if not tau > 0.0:
         checks.append(Check("fail", "The heating time constant must be positive."))
         tau = tau0
