@@ -24,7 +24,21 @@ def prepare(case) -> StudyContext:
     ctx = StudyContext(case=case, rated_current=motor_rated_current(case.machine))
     ctx.extras["checks"] = []
     ctx.extras["motor"] = motor_basis(ctx)
+    b = ctx.extras["motor"]
+    ctx.extras["start_profiles"] = [start_profile("minimum", b.start_min), start_profile("computed", b.start_normal)]
     return ctx
+
+
+def start_profile(label: str, start, points: int = 200) -> dict:
+    """A simulated start as plain data for the record: time [s] and RMS current [A primary], at most ``points``
+    samples (every sample where the current changes fastest is kept by sampling evenly in time)."""
+    t, i = np.asarray(start.times, float), np.asarray(start.currents, float)
+    if t.size > points:
+        grid = np.linspace(t[0], t[-1], points)
+        i, t = np.interp(grid, t, i), grid
+    return {"label": label, "voltage": float(start.voltage), "accelerates": bool(start.accelerates),
+            "acceleration_time": float(start.acceleration_time) if math.isfinite(start.acceleration_time) else None,
+            "time": [float(x) for x in t], "current": [float(x) for x in i]}
 
 
 RULES: list = [
