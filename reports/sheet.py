@@ -589,11 +589,7 @@ def sheet_layout(record, page_size: str | None = None, changes=None, previous_re
                  "subject": f"Protection settings sheet for {plain(record.tag)}, revision {rev}, {status}",
                  "keywords": keywords(record), "creator": f"relaywright {_version()}".strip(),
                  "date": pdf_date(sheet.get("date"))},
-        "footer": {"lines": [f"{plain(record.tag)} · revision {rev} · {status_word}",
-                             f"inputs fingerprint {record.inputs_fingerprint}"],
-                   "draft": status != "issued",
-                   "draft_text": "DRAFT · not for use" if status == "draft" else
-                   f"DRAFT · {status}, not issued · not for use"},
+        "footer": _footer(record, status, status_word, size),
         "blocks": blocks,
     }
 
@@ -635,7 +631,7 @@ def render_layout(layout: dict) -> tuple[bytes, SignatureBox | None]:
                   id="body")
     footer = layout["footer"]
     doc.addPageTemplates([PageTemplate(id="sheet", frames=[frame], pagesize=size,
-                                       onPage=lambda canv, _doc: _decorate(canv, footer, size, mx, mb))])
+                                       onPage=lambda canv, _doc: _decorate(canv, footer))])
     a85, rl_config.useA85 = rl_config.useA85, 0  # binary compressed streams: smaller and about 5 % faster
     try:
         doc.build(story, canvasmaker=_canvas_maker(info["date"]))
@@ -772,32 +768,40 @@ def _canvas_maker(date: str):
     return SheetCanvas
 
 
-def _decorate(canv, footer: dict, size, mx: float, mb: float) -> None:
-    """The footer of every page (and the draft mark at the top of a sheet that is not issued)."""
-    from reportlab.lib.colors import HexColor
+def _footer(record, status: str, status_word: str, size) -> dict:
+    """The page furniture as drawing operations (the same on every page) and the page-number position."""
     from reportlab.pdfbase.pdfmetrics import stringWidth
 
-    from reports.plots import draw_ops, text_runs
+    from reports.plots import text_runs
 
-    width = size[0] - 2 * mx
-    y = mb - 22
-    canv.saveState()
-    canv.setStrokeColor(HexColor(ACCENT_HEX))
-    canv.setLineWidth(0.6)
-    canv.line(mx, y + 12, mx + width, y + 12)
-    first = _fit(footer["lines"][0], width - 90, 7.5)
-    ops = [["text", mx, y + 2, text_runs(first, 7.5, formulas=False), GREY, 0],
-           ["text", mx, y - 7, [[footer["lines"][1], SANS, 6.5, 0.0]], GREY, 0]]
-    if footer["draft"]:
-        text = footer["draft_text"]
-        ops.append(["text", mx + width - stringWidth(text, SANS_BOLD, 9), size[1] - 26,
+    width = size[0] - 2 * MARGIN_X
+    y = MARGIN_BOTTOM - 22
+    first = _fit(f"{plain(record.tag)} · revision {record.sheet.get('revision', record.revision)} · {status_word}",
+                 width - 90, 7.5)
+    ops = [["path", ACCENT_HEX, 0.6, None, [[MARGIN_X, y + 12, MARGIN_X + width, y + 12]], None],
+           ["text", MARGIN_X, y + 2, text_runs(first, 7.5, formulas=False), GREY, 0],
+           ["text", MARGIN_X, y - 7, [[f"inputs fingerprint {record.inputs_fingerprint}", SANS, 6.5, 0.0]], GREY,
+            0]]
+    if status != "issued":
+        text = "DRAFT · not for use" if status == "draft" else f"DRAFT · {status}, not issued · not for use"
+        ops.append(["text", round(MARGIN_X + width - stringWidth(text, SANS_BOLD, 9), 2), size[1] - 26,
                     [[text, SANS_BOLD, 9, 0.0]], ACCENT_HEX, 0])
-    draw_ops(canv, ops)
+    return {"ops": ops, "page_number": [MARGIN_X + width - 58, y + 2, SANS_BOLD, 7.5]}
+
+
+def _decorate(canv, footer: dict) -> None:
+    """Every page's furniture: footer, draft mark, and "page x of" followed by the page-count form."""
+    from reportlab.pdfbase.pdfmetrics import stringWidth
+
+    from reports.plots import draw_ops
+
+    draw_ops(canv, footer["ops"])
+    x, y, font, size = footer["page_number"]
     label = f"page {canv.getPageNumber()} of "
-    x = mx + width - 58
-    canv.setFont(SANS_BOLD, 7.5)
-    canv.drawString(x, y + 2, label)
-    canv.translate(x + stringWidth(label, SANS_BOLD, 7.5), y + 2)
+    canv.saveState()
+    canv.setFont(font, size)
+    canv.drawString(x, y, label)
+    canv.translate(x + stringWidth(label, font, size), y)
     canv.doForm(PAGES_FORM)
     canv.restoreState()
 

@@ -486,7 +486,7 @@ def settings_blocks(record) -> list[FunctionBlock]:
         title = f.title + ("" if f.enabled else " (not enabled)")
         if not rows:
             rows.append(SettingRow("", "", "", "", "", "", ""))
-        rows[0] = rows[0]._replace(fid=f.id, function=title)
+        rows[0] = SettingRow(f.id, title, *rows[0][2:])
         blocks.append(FunctionBlock(f.id, f.title, f.enabled, rows, f.basis, "; ".join(f.references), derived))
     return blocks
 
