@@ -138,7 +138,7 @@ def _piece(text: str, main: bool, has_fallback: bool, bold: bool) -> str:
 SUB, SUPER = "sub", "super"
 _SUPER_GROUP = re.compile(r"\^\(([^()]*)\)|\^([0-9A-Za-z−+-]+)")
 _SUBSCRIPT = re.compile(
-    r"(?<![A-Za-z0-9])([A-Za-zα-ωΑ-Ω])_([A-Za-z0-9]{1,4})(?![A-Za-z0-9_])"  # I_LR, t_st, X_C0, V_LN
+    r"(?<![A-Za-z])([A-Za-zα-ωΑ-Ω])_([A-Za-z0-9]{1,10})(?![A-Za-z0-9_])"  # I_LR, t_st, 3I_C0, V_rated
     r"|(?<![A-Za-z0-9'])([IVXZKC])([0-2])(?![A-Za-z0-9.])"  # I2, V1, C0, K2
     r"|(?<![A-Za-z0-9])(X'{0,2})([dq])(?![A-Za-z0-9])"  # Xd, X'd, X''d, Xq
 )

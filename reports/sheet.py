@@ -111,8 +111,13 @@ _BOLD = (SANS_BOLD, SANS_BOLD_ITALIC)
 def _para(text: object, style: str, *, study: bool = False) -> list:
     """A paragraph block: ``study`` text (labels, notes, sentences) gets its formulas set, user text is escaped."""
     bold = STYLES[style]["fontName"] in _BOLD
-    body = formula(text, bold=bold) if study else markup(text, bold=bold)
+    body = _f(text, bold=bold) if study else markup(text, bold=bold)
     return ["p", glue_units(body), style]
+
+
+def _f(text: object, bold: bool = False) -> str:
+    """Markup of study text: machine-file keys named as the sheet names them, formulas set."""
+    return formula(tables.readable_keys(plain(text)), bold=bold)
 
 
 def _raw(markup_text: str, style: str) -> list:
@@ -136,7 +141,7 @@ def _one_line(cell: _Cell, width: float) -> bool:
     text = cell.text
     if "\n" in text or not in_main_font(text):
         return False
-    if cell.study and formula(text) != markup(text):
+    if cell.study and (formula(text) != markup(text) or tables.readable_keys(text) != text):
         return False
     st = STYLES[cell.style]
     return stringWidth(text, st["fontName"], st["fontSize"]) <= width - 2 * _PAD
@@ -247,7 +252,7 @@ def _pairs_table(sections, width: float, changed: set[str] = frozenset(), study:
                 key = rest[1] if len(rest) > 1 else ""
                 text = markup(value)
                 if note:
-                    text += f"<br/><font size='6.5' color='{GREY}'>{formula(note) if study else markup(note)}</font>"
+                    text += f"<br/><font size='6.5' color='{GREY}'>{_f(note) if study else markup(note)}</font>"
                 row += [_c(label, "small", study=True), _raw(text, "cell")]
                 if key and key in changed:
                     cmds.append(("LINEBEFORE", (2 * k, len(rows)), (2 * k, len(rows)), 2.5, ACCENT_HEX))
@@ -294,9 +299,9 @@ def _settings(record, width: float, changed: set[str]) -> list:
                          _c(r.primary), _c(to_set, "set"), _c(r.source), _c(r.note, "cell", True)])
             if f"{block.fid}.{r.key}" in changed or (r is block.rows[0] and block.fid in changed):
                 cmds.append(("LINEBEFORE", (0, len(rows) - 1), (0, len(rows) - 1), 2.5, ACCENT_HEX))
-        basis = formula(block.basis) if block.basis else ""
+        basis = _f(block.basis) if block.basis else ""
         if block.references:
-            basis += ("  " if basis else "") + f"<font name='{SANS}'>[{markup(block.references)}]</font>"
+            basis += ("  " if basis else "") + f"<font name='{SANS}'>[{_f(block.references)}]</font>"
         if basis:
             rows.append(["", _raw(f"Basis: {basis}", "basis"), "", "", "", "", ""])
             cmds.append(("SPAN", (1, len(rows) - 1), (-1, len(rows) - 1)))
@@ -453,9 +458,9 @@ def _tests(record, width: float) -> list:
                   "under the table.", "small"))
     body = [[_c(name, "head") for name, _ in _TEST_COLS]]
     for r in rows:
-        test = formula(r.test)
+        test = _f(r.test)
         if r.initial_state and r.initial_state != "—":
-            test += f"<br/><font color='{GREY}'>initial state: {formula(r.initial_state)}</font>"
+            test += f"<br/><font color='{GREY}'>initial state: {_f(r.initial_state)}</font>"
         body.append([_c(r.number, "cellb"), _raw(test, "cell"), _c(r.applied_primary), _c(r.applied_secondary),
                      _c(r.expected), _c(r.band + (f" [{r.tolerance_key}]" if r.tolerance_key else "")), "", ""])
     cmds = [("LINEBELOW", (0, 0), (-1, 0), 1.0, ACCENT_HEX), ("LINEBELOW", (0, 1), (-1, -1), 0.3, GREY),

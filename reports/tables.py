@@ -587,7 +587,32 @@ def readable_keys(text: str) -> str:
             label = label[:1].lower() + label[1:]
         return f"{label} [{SECTION_TITLE.get(m.group(1), m.group(1)).lower()}]"
 
-    return _KEY_PATH.sub(word, text)
+    def bare(m):
+        return _lower_first(printed_label(m.group(1))) if m.group(1) in _known_keys() else m.group(1)
+
+    return _BARE_KEY.sub(bare, _KEY_PATH.sub(word, text))
+
+
+_BARE_KEY = re.compile(r"\b([a-z][a-z0-9]*_[a-z0-9_]+)\b")
+
+
+def _lower_first(label: str) -> str:
+    return label if label[:2].isupper() else label[:1].lower() + label[1:]
+
+
+def _known_keys() -> frozenset[str]:
+    """Every machine-file key name (both kinds of machine)."""
+    global _KEYS
+    if _KEYS is None:
+        names = set()
+        for kind in ("induction-motor", "synchronous-generator"):
+            for section in _specs(kind).values():
+                names |= set(section)
+        _KEYS = frozenset(names)
+    return _KEYS
+
+
+_KEYS: frozenset[str] | None = None
 
 
 def finding_rows(record, include_ok: bool = True) -> list[FindingRow]:
