@@ -283,7 +283,7 @@ _SETTINGS_COLS = (("ID", 0.06), ("Function", 0.16), ("Setting", 0.19), ("Primary
 
 
 def _settings(record, width: float, changed: set[str]) -> list:
-    out = _heading("Settings")
+    out = [{"t": "cond", "h": 220}] + _heading("Settings")  # the heading goes with the first function's rows
     blocks = tables.settings_blocks(record)
     if not blocks:
         return out + [_p("The study produced no settings for this machine.", "body")]
@@ -294,9 +294,11 @@ def _settings(record, width: float, changed: set[str]) -> list:
     for block in blocks:
         first = len(rows)
         for r in block.rows:
-            to_set = r.relay_side + (f"\nstep {r.step}" if r.step else "")
+            to_set = _c(r.relay_side, "set") if not r.step else _raw(
+                f"{markup(r.relay_side, bold=True)}<br/><font name='{SANS}' size='6.5' color='{GREY}'>step "
+                f"{markup(r.step)}</font>", "set")
             rows.append([_c(r.fid, "cellb"), _c(r.function, "cellb", True), _c(r.setting, "cell", True),
-                         _c(r.primary), _c(to_set, "set"), _c(r.source), _c(r.note, "cell", True)])
+                         _c(r.primary), to_set, _c(r.source), _c(r.note, "cell", True)])
             if f"{block.fid}.{r.key}" in changed or (r is block.rows[0] and block.fid in changed):
                 cmds.append(("LINEBEFORE", (0, len(rows) - 1), (0, len(rows) - 1), 2.5, ACCENT_HEX))
         basis = _f(block.basis) if block.basis else ""
