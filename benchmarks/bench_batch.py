@@ -17,9 +17,9 @@ What is measured (wall-clock medians; a whole process includes interpreter start
 - peak resident memory of a batch worker (``getrusage(RUSAGE_CHILDREN).ru_maxrss`` of a process that runs the batch
   in a pool) and of the main process.
 
-The floor (``floor_sheet.py``) builds a plain reportlab PDF with the same page count, table rows and cells, paragraphs
-and their characters, plots and plotted points as the real sheet (counted as the sheet is drawn), so each ratio is
-what relaywright costs beyond setting the same content in reportlab.
+The floor (``floor_sheet.py``) sets the sheet's own saved layout with plain reportlab (same pages, cells,
+paragraphs, drawing points, fonts and stream settings; ``tests/test_floor.py`` counts them), so each ratio is what
+relaywright costs beyond setting the same document in reportlab.
 """
 
 from __future__ import annotations
@@ -43,7 +43,7 @@ ROOT = HERE.parent
 EXAMPLES = sorted((ROOT / "examples").glob("*.toml"))
 sys.path.insert(0, str(HERE))
 
-from floor_sheet import Content, build_floor, fitted, page_count  # noqa: E402
+from floor_sheet import build_floor  # noqa: E402
 
 TARGETS = {"help": 0.15, "study": 0.020, "sheet_process": 1.0, "batch_ratio": 1.5, "speedup": 1.7,
            "worker_mb": 200.0}
@@ -85,43 +85,11 @@ def timed(fn) -> float:
 # ---------------------------------------------------------------------------------------------------- content
 
 
-def sheet_content(record) -> Content:
-    """Pages, table rows and cells, plots and points of ``record``'s sheet, counted as they are drawn."""
-    from reportlab.graphics.charts import lineplots
-    from reportlab.platypus import tables as rl_tables
+def sheet_layout_of(record) -> dict:
+    """The sheet's layout as saved for the floor (plain data: the floor sets exactly this document)."""
+    from reports.sheet import sheet_layout
 
-    from reports.sheet import build_sheet
-
-    from reportlab.platypus import Flowable
-
-    from reportlab.platypus import Paragraph
-
-    count = {"rows": 0, "cells": 0, "cell_paragraphs": 0, "paragraphs": 0, "chars": 0, "plots": 0, "points": 0}
-    table_draw, plot_draw, para_draw = rl_tables.Table.draw, lineplots.LinePlot.draw, Paragraph.draw
-
-    def draw_table(self):  # counted as drawn: a table split over two pages counts once
-        rows = self._cellvalues
-        count["rows"] += len(rows)
-        count["cells"] += sum(len(r) for r in rows)
-        count["cell_paragraphs"] += sum(1 for r in rows for x in r if isinstance(x, (Flowable, list, tuple)))
-        return table_draw(self)
-
-    def draw_plot(self):
-        count["plots"] += 1
-        count["points"] += sum(len(s) for s in self.data)
-        return plot_draw(self)
-
-    def draw_paragraph(self):
-        count["paragraphs"] += 1
-        count["chars"] += len(self.getPlainText())
-        return para_draw(self)
-
-    rl_tables.Table.draw, lineplots.LinePlot.draw, Paragraph.draw = draw_table, draw_plot, draw_paragraph
-    try:
-        pdf = build_sheet(record)
-    finally:
-        rl_tables.Table.draw, lineplots.LinePlot.draw, Paragraph.draw = table_draw, plot_draw, para_draw
-    return fitted(Content(pages=page_count(pdf), **count))
+    return json.loads(json.dumps(sheet_layout(record)))
 
 
 # ---------------------------------------------------------------------------------------------------- machine files
@@ -205,7 +173,7 @@ def run(files: int, repeat: int) -> list[tuple[str, float, float | None, str, st
 
         # (b) one sheet in process, against the floor in process (mean over the examples, as the batch mixes them)
         records = [run_study(case, warnings) for case, warnings in cases]
-        contents = [sheet_content(r) for r in records]
+        contents = [sheet_layout_of(r) for r in records]
         sheet_ts, floor_ts = [], []
         for record, content in zip(records, contents):
             build_sheet(record), build_floor(content)
@@ -216,7 +184,8 @@ def run(files: int, repeat: int) -> list[tuple[str, float, float | None, str, st
 
         # (c) a whole `relaywright sheet` process, against the floor as a whole process
         c0 = contents[0]
-        floor_args = [f"--{k.replace('_', '-')}={v}" for k, v in c0.__dict__.items()]
+        (tmp / "layout.json").write_text(json.dumps(c0), "utf-8")
+        floor_args = [str(tmp / "layout.json")]
         sheet_p = median_of(lambda: wall([*cli(), "sheet", str(EXAMPLES[0]), "-o", str(tmp / "one.pdf")]), 5)
         floor_p = median_of(lambda: wall([sys.executable, str(HERE / "floor_sheet.py"), *floor_args, "-o",
                                           str(tmp / "floor.pdf")]), 5)
@@ -228,7 +197,7 @@ def run(files: int, repeat: int) -> list[tuple[str, float, float | None, str, st
         plant.mkdir()
         which = make_plant(plant, files)
         spec = tmp / "contents.json"
-        spec.write_text(json.dumps([contents[k].__dict__ for k in which]))
+        spec.write_text(json.dumps([contents[k] for k in which]))
         times: dict[tuple[str, int], float] = {}
         for workers in (2, 1):
             def batch_once(w=workers):
@@ -240,7 +209,7 @@ def run(files: int, repeat: int) -> list[tuple[str, float, float | None, str, st
                 out = tmp / f"floor-{w}"
                 shutil.rmtree(out, ignore_errors=True)
                 return wall([sys.executable, str(HERE / "floor_sheet.py"), "--batch", str(files), "--workers",
-                             str(w), "--contents", str(spec), str(out)])
+                             str(w), "--layouts", str(spec), str(out)])
 
             times[("batch", workers)] = median_of(batch_once, repeat)
             cpu_batch = statistics.median(CPU_USED[-repeat:])
@@ -262,8 +231,8 @@ def run(files: int, repeat: int) -> list[tuple[str, float, float | None, str, st
         mem = json.loads(helper.stdout.strip().splitlines()[-1])
         rows.append(("peak memory per batch worker", mem["worker_mb"], None, "MB", f"< {TARGETS['worker_mb']:.0f} MB"))
         rows.append(("peak memory of the batch main process", mem["main_mb"], None, "MB", ""))
-        rows.append(("sheet content (" + " / ".join(c0.__dict__) + ")", 0, None,
-                     " / ".join(str(v) for v in c0.__dict__.values()), "first example"))
+        rows.append(("sheet content (blocks in the first example's layout)", 0, None, str(len(c0["blocks"])),
+                     "first example"))
     finally:
         shutil.rmtree(tmp, ignore_errors=True)
     return rows

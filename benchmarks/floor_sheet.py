@@ -1,162 +1,258 @@
-"""The rendering floor: a plain reportlab PDF with the same amount of content as a settings sheet.
+"""The rendering floor: the same settings sheet set by a plain reportlab script, from the sheet's saved layout.
 
-It has nothing of relaywright (no units, no study, no record): a document of the given number of pages holding
-tables (the given rows and cells, as many of them Paragraphs as on the sheet), the same number of Paragraphs with
-the same number of characters of words, and log-log line plots (the given number of plots and points), set in the
-TrueType font the sheet embeds (Bitstream Vera, shipped with reportlab). What the sheet
-costs beyond this is relaywright's own overhead; ``bench_batch.py`` prints each figure as a ratio to this floor.
+relaywright builds a sheet in two steps: the record becomes a layout (``reports.sheet.sheet_layout``: every
+paragraph with its markup and style, every table cell, width and style command, every drawing as paths, markers and
+text runs, the page furniture), then reportlab sets it. This script does the second step on its own, with nothing of
+relaywright imported: it reads a layout saved as JSON and sets it with reportlab's usual classes (Paragraph, Table,
+a Flowable replaying the drawings), the same fonts under the same names (so the same subsets), the same stream
+settings (compressed, not ASCII85) and the same page furniture. What the sheet costs beyond this floor is
+relaywright's own work: reading the file, the study and the layout. ``tests/test_floor.py`` checks that the two
+PDFs hold the same pages, text objects, path points and fonts.
 
-Run it the same ways as the sheet::
+Save a layout (``bench_batch.py`` saves one per example) and run the floor::
 
-    python benchmarks/floor_sheet.py --pages 8 --rows 155 --cells 880 --cell-paragraphs 741 --paragraphs 900 \\
-        --chars 40000 --plots 1 --points 300 -o floor.pdf
-    python benchmarks/floor_sheet.py --batch 200 --workers 2 --contents contents.json OUTDIR  # spawn pool
+    python -c "import json, sys; from machines.files import load_case; from machines.study import run_study; \\
+        from reports.sheet import sheet_layout; print(json.dumps(sheet_layout(run_study(*load_case(sys.argv[1])))))" \\
+        examples/chiller-compressor-motor.toml > layout.json
+    python benchmarks/floor_sheet.py layout.json -o floor.pdf
+    python benchmarks/floor_sheet.py --batch 200 --workers 2 --layouts layouts.json OUTDIR  # spawn pool
 """
 
 from __future__ import annotations
 
 import argparse
 import io
+import json
 import os
 import sys
-from dataclasses import dataclass
 from pathlib import Path
 
-
-@dataclass(frozen=True)
-class Content:
-    """How much a sheet holds, as drawn: pages; table rows and cells, and the cells holding a Paragraph; all
-    Paragraphs (in table cells and outside) and their characters; plots and plotted points."""
-
-    pages: int
-    rows: int
-    cells: int
-    cell_paragraphs: int
-    paragraphs: int
-    chars: int
-    plots: int
-    points: int
-    breaks: int = 0  #: empty pages added at the end to reach ``pages`` (see :func:`fitted`)
+_FORM = "rwPageTotal"
 
 
-_WORDS = ("pickup", "105.6", "A", "thermal", "replica", "of", "the", "stator", "at", "1.15", "pu", "service",
-          "factor", "IEC", "60255-149", "time", "constant", "612", "s", "with", "relay", "side", "0.704")
-
-
-def filler(n: int, seed: int) -> str:
-    """``n`` characters of words such as a sheet prints (deterministic)."""
-    out, i = [], seed
-    length = 0
-    while length < n:
-        w = _WORDS[i % len(_WORDS)]
-        out.append(w)
-        length += len(w) + 1
-        i += 7
-    return " ".join(out)[:max(n, 1)]
-
-
-def _fonts():
-    import reportlab
+def _fonts(files: dict[str, str]) -> None:
+    from reportlab.lib.fonts import addMapping
     from reportlab.pdfbase import pdfmetrics
     from reportlab.pdfbase.ttfonts import TTFont
 
-    if "Floor-Sans" not in pdfmetrics.getRegisteredFontNames():
-        folder = os.path.join(os.path.dirname(reportlab.__file__), "fonts")
-        pdfmetrics.registerFont(TTFont("Floor-Sans", os.path.join(folder, "Vera.ttf")))
-        pdfmetrics.registerFont(TTFont("Floor-Sans-Bold", os.path.join(folder, "VeraBd.ttf")))
+    known = set(pdfmetrics.getRegisteredFontNames())
+    for name, path in files.items():
+        if name not in known:
+            pdfmetrics.registerFont(TTFont(name, path))
+    names = sorted(files)
+    regular = [n for n in names if n.endswith("Sans")]
+    if regular:
+        base = regular[0]
+        pdfmetrics.registerFontFamily(base, normal=base, bold=base + "-Bold", italic=base + "-Italic",
+                                      boldItalic=base + "-BoldItalic")
+    for name in names:
+        if name.endswith("Fallback"):
+            for bold in (0, 1):
+                for italic in (0, 1):
+                    addMapping(name, bold, italic, name + ("-Bold" if bold else ""))
 
 
-def _plot(points: int, width: float, height: float):
-    """A log-log line plot of ``points`` points in three series."""
-    from reportlab.graphics.charts.axes import LogXValueAxis, LogYValueAxis
-    from reportlab.graphics.charts.lineplots import LinePlot
-    from reportlab.graphics.shapes import Drawing
+def _replay(canv, ops) -> None:
+    from reportlab.lib.colors import HexColor
 
-    drawing = Drawing(width, height)
-    lp = LinePlot()
-    lp.x, lp.y, lp.width, lp.height = 50, 30, width - 70, height - 45
-    lp.xValueAxis, lp.yValueAxis = LogXValueAxis(), LogYValueAxis()
-    lp.xValueAxis.valueMin, lp.xValueAxis.valueMax = 10.0, 1e4
-    lp.yValueAxis.valueMin, lp.yValueAxis.valueMax = 0.01, 1e3
-    lp.xValueAxis.subTickNum = lp.yValueAxis.subTickNum = 10
-    series = []
-    for s in range(3):
-        n = max(2, points // 3 + (1 if s < points % 3 else 0))
-        series.append([(10.0 * 1000 ** (k / (n - 1)) * (1 + 0.1 * s), 0.02 * 40000 ** (1 - k / (n - 1)))
-                       for k in range(n)])
-    lp.data = series
-    drawing.add(lp)
-    return drawing
+    canv.saveState()
+    canv.setLineJoin(1)
+    for op in ops:
+        if op[0] == "path":
+            _, stroke, width, dash, subpaths, fill = op
+            p = canv.beginPath()
+            for sp in subpaths:
+                p.moveTo(sp[0], sp[1])
+                for k in range(2, len(sp), 2):
+                    p.lineTo(sp[k], sp[k + 1])
+                if fill:
+                    p.close()
+            if stroke:
+                canv.setStrokeColor(HexColor(stroke))
+                canv.setLineWidth(width)
+                canv.setDash(dash, 0) if dash else canv.setDash()
+            if fill:
+                canv.setFillColor(HexColor(fill))
+            canv.drawPath(p, stroke=1 if stroke else 0, fill=1 if fill else 0)
+        elif op[0] == "markers":
+            _, shape, size, color, filled, flat = op
+            p = canv.beginPath()
+            r = size / 2
+            for k in range(0, len(flat), 2):
+                x, y = flat[k], flat[k + 1]
+                if shape == "circle":
+                    p.circle(x, y, r)
+                elif shape == "square":
+                    p.rect(x - r * 0.85, y - r * 0.85, 1.7 * r, 1.7 * r)
+                elif shape == "triangle":
+                    p.moveTo(x, y + r * 1.1)
+                    p.lineTo(x - r, y - r * 0.7)
+                    p.lineTo(x + r, y - r * 0.7)
+                    p.close()
+                elif shape == "diamond":
+                    p.moveTo(x, y + r * 1.15)
+                    p.lineTo(x + r, y)
+                    p.lineTo(x, y - r * 1.15)
+                    p.lineTo(x - r, y)
+                    p.close()
+                elif shape == "cross":
+                    p.moveTo(x - r, y - r)
+                    p.lineTo(x + r, y + r)
+                    p.moveTo(x - r, y + r)
+                    p.lineTo(x + r, y - r)
+                else:
+                    p.moveTo(x - r, y)
+                    p.lineTo(x + r, y)
+                    p.moveTo(x, y - r)
+                    p.lineTo(x, y + r)
+            canv.setStrokeColor(HexColor(color))
+            canv.setLineWidth(0.8)
+            canv.setDash()
+            lines = shape in ("cross", "plus")
+            if filled:
+                canv.setFillColor(HexColor(color))
+            elif not lines:
+                canv.setFillColor(HexColor("#ffffff"))
+            canv.drawPath(p, stroke=1, fill=0 if lines else 1)
+        elif op[0] == "text":
+            _, x, y, runs, color, angle = op
+            canv.setFillColor(HexColor(color))
+            if angle:
+                canv.saveState()
+                canv.translate(x, y)
+                canv.rotate(angle)
+                t = canv.beginText(0, 0)
+            else:
+                t = canv.beginText(x, y)
+            for text, font, size, rise in runs:
+                t.setFont(font, size)
+                t.setRise(rise)
+                t.textOut(text)
+            canv.drawText(t)
+            if angle:
+                canv.restoreState()
+    canv.restoreState()
 
 
-def build_floor(c: Content) -> bytes:
-    """The floor PDF for the content ``c`` (A4)."""
-    from reportlab.lib.pagesizes import A4
+def build_floor(layout: dict) -> bytes:
+    """The floor PDF of a saved sheet layout."""
+    from reportlab import rl_config
+    from reportlab.lib.colors import HexColor
     from reportlab.lib.styles import ParagraphStyle
-    from reportlab.platypus import PageBreak, Paragraph, SimpleDocTemplate, Table, TableStyle
+    from reportlab.pdfbase.pdfmetrics import stringWidth
+    from reportlab.pdfgen.canvas import Canvas
+    from reportlab.platypus import (BaseDocTemplate, CondPageBreak, Flowable, Frame, HRFlowable, KeepTogether,
+                                    PageBreak, PageTemplate, Paragraph, Spacer, Table, TableStyle)
 
-    _fonts()
-    cell = ParagraphStyle("cell", fontName="Floor-Sans", fontSize=7.8, leading=9.4)
-    body = ParagraphStyle("body", cell, fontSize=8.5, leading=10.8)
-    width = A4[0] - 80
-    cols = max(1, round(c.cells / max(c.rows, 1)))
-    every = c.cells / max(c.cell_paragraphs, 1)  # one cell in ``every`` holds a Paragraph, the others plain text
-    per_paragraph = c.chars // max(c.paragraphs, 1)
-    serial = 0
+    _fonts(layout["fonts"])
+    styles = {}
+    for name, kw in layout["styles"].items():
+        kw = dict(kw)
+        if "textColor" in kw:
+            kw["textColor"] = HexColor(kw["textColor"])
+        styles[name] = ParagraphStyle(name, **kw)
 
-    def cell_of(r: int, k: int):
-        nonlocal serial
-        serial += 1
-        if c.cell_paragraphs and serial % every < 1:
-            return Paragraph(filler(per_paragraph, serial), cell)
-        return f"{r}.{k}"
+    class Drawn(Flowable):
+        def __init__(self, width, height, ops):
+            super().__init__()
+            self.width, self.height, self.ops = width, height, ops
 
-    free = max(c.paragraphs - c.cell_paragraphs, 0)
-    story: list = [Paragraph(filler(per_paragraph, 1000 + i), body) for i in range(free)]
-    if c.rows:
-        table = Table([[cell_of(r, k) for k in range(cols)] for r in range(c.rows)], colWidths=[width / cols] * cols,
-                      repeatRows=1)
-        table.setStyle(TableStyle([("VALIGN", (0, 0), (-1, -1), "TOP"),
-                                   ("LINEBELOW", (0, 0), (-1, -1), 0.3, "#555555")]))
-        story.append(table)
-    for i in range(c.plots):
-        story.append(_plot(max(c.points // max(c.plots, 1), 6), width, 250))
-    for _ in range(c.breaks):
-        story += [PageBreak(), Paragraph(" ", body)]
+        def wrap(self, aw, ah):
+            return self.width, self.height
+
+        def draw(self):
+            _replay(self.canv, self.ops)
+
+    def cell(c):
+        if isinstance(c, str):
+            return c
+        if c[0] == "p":
+            return Paragraph(c[1], styles[c[2]])
+        if c[0] == "stack":
+            return [cell(x) for x in c[1]]
+        return Spacer(c[1], c[2])  # the signature spot: an empty box of the same size
+
+    def flowable(b):
+        t = b["t"]
+        if t == "p":
+            return Paragraph(b["text"], styles[b["style"]])
+        if t == "table":
+            table = Table([[cell(c) for c in row] for row in b["rows"]], colWidths=b["widths"],
+                          repeatRows=b["repeat"], hAlign="LEFT")
+            table.setStyle(TableStyle([(c[0], tuple(c[1]), tuple(c[2]),
+                                        *[HexColor(a) if isinstance(a, str) and a.startswith("#") else a
+                                          for a in c[3:]]) for c in b["cmds"]]))
+            return table
+        if t == "space":
+            return Spacer(1, b["h"])
+        if t == "cond":
+            return CondPageBreak(b["h"])
+        if t == "break":
+            return PageBreak()
+        if t == "rule":
+            return HRFlowable(width="100%", thickness=b["thickness"], color=HexColor(b["color"]), spaceBefore=0,
+                              spaceAfter=b["after"])
+        if t == "keep":
+            return KeepTogether([flowable(x) for x in b["items"]])
+        return Drawn(b["w"], b["h"], b["ops"])
+
+    page, info, footer = layout["page"], layout["info"], layout["footer"]
+    size = tuple(page["size"])
+    mx, mt, mb = page["margin_x"], page["margin_top"], page["margin_bottom"]
+    width = size[0] - 2 * mx
+    regular = min(n for n in layout["fonts"] if n.endswith("Sans"))
+    bold = regular + "-Bold"
+
+    def decorate(canv, _doc):
+        _replay(canv, footer["ops"])
+        x, y, font, fsize = footer["page_number"]
+        label = f"page {canv.getPageNumber()} of "
+        canv.saveState()
+        canv.setFont(font, fsize)
+        canv.drawString(x, y, label)
+        canv.translate(x + stringWidth(label, font, fsize), y)
+        canv.doForm(_FORM)
+        canv.restoreState()
+
+    class PagedCanvas(Canvas):
+        def __init__(self, *a, **kw):
+            super().__init__(*a, **kw)
+            self.setDateFormatter(lambda *parts: info["date"])
+
+        def save(self):
+            self.beginForm(_FORM)
+            self.setFont(bold, 7.5)
+            self.drawString(0, 0, str(self.getPageNumber() - 1))
+            self.endForm()
+            super().save()
+
     buf = io.BytesIO()
-    doc = SimpleDocTemplate(buf, pagesize=A4, invariant=True, leftMargin=40, rightMargin=40, topMargin=40,
-                            bottomMargin=50)
-    doc.build(story)
+    doc = BaseDocTemplate(buf, pagesize=size, invariant=True, leftMargin=mx, rightMargin=mx, topMargin=mt,
+                          bottomMargin=mb, title=info["title"], author=info["author"], subject=info["subject"],
+                          keywords=info["keywords"], creator=info["creator"], lang="en", initialFontName=regular,
+                          initialFontSize=8.5)
+    doc.addPageTemplates([PageTemplate(id="sheet", pagesize=size, onPage=decorate, frames=[
+        Frame(mx, mb, width, size[1] - mt - mb, leftPadding=0, rightPadding=0, topPadding=0, bottomPadding=0)])])
+    a85, rl_config.useA85 = rl_config.useA85, 0
+    try:
+        doc.build([flowable(b) for b in layout["blocks"]], canvasmaker=PagedCanvas)
+    finally:
+        rl_config.useA85 = a85
     return buf.getvalue()
 
 
-def fitted(c: Content) -> Content:
-    """``c`` with the empty pages that bring the floor to the sheet's page count (one untimed trial build)."""
-    from dataclasses import replace
-
-    natural = page_count(build_floor(replace(c, breaks=0)))
-    return replace(c, breaks=max(c.pages - natural, 0))
-
-
-def page_count(pdf: bytes) -> int:
-    """Pages of a PDF (counted by its page objects; enough for reportlab's output)."""
-    import re
-
-    return len(re.findall(rb"/Type\s*/Page[^s]", pdf))
-
-
-def _job(args: tuple[Content, str]) -> int:
-    content, path = args
-    Path(path).write_bytes(build_floor(content))
+def _job(args: tuple[str, str]) -> int:
+    layout_json, path = args
+    Path(path).write_bytes(build_floor(json.loads(layout_json)))
     return 1
 
 
-def run_batch(contents: list[Content], out: Path, workers: int) -> None:
-    """Build one floor per content into ``out``: in this process for one worker, else a spawn pool (like batch)."""
+def run_batch(layouts: list[dict], out: Path, workers: int) -> None:
+    """Build one floor per layout into ``out``: in this process for one worker, else a spawn pool (like batch)."""
     import multiprocessing
 
     out.mkdir(parents=True, exist_ok=True)
-    jobs = [(c, str(out / f"floor-{i:04d}.pdf")) for i, c in enumerate(contents)]
+    jobs = [(json.dumps(layout), str(out / f"floor-{i:04d}.pdf")) for i, layout in enumerate(layouts)]
     if workers == 1:
         for job in jobs:
             _job(job)
@@ -168,22 +264,18 @@ def run_batch(contents: list[Content], out: Path, workers: int) -> None:
 
 def main(argv: list[str] | None = None) -> int:
     ap = argparse.ArgumentParser(description=__doc__.splitlines()[0])
-    for name in Content.__dataclass_fields__:
-        ap.add_argument(f"--{name.replace('_', '-')}", type=int, default=1)
-    ap.add_argument("--contents", type=Path, help="JSON list of contents for --batch, used in turn")
-    ap.add_argument("-o", "--output", type=Path, help="one floor PDF to write")
+    ap.add_argument("layout", nargs="?", type=Path, help="a saved sheet layout (JSON) to set once")
+    ap.add_argument("-o", "--output", type=Path, help="the floor PDF to write")
+    ap.add_argument("--layouts", type=Path, help="JSON list of layouts for --batch, used in turn")
     ap.add_argument("--batch", type=int, help="build this many floors into OUTDIR")
     ap.add_argument("--workers", type=int, default=os.cpu_count() or 1)
     ap.add_argument("outdir", nargs="?", type=Path)
     a = ap.parse_args(argv)
-    content = Content(**{name: getattr(a, name) for name in Content.__dataclass_fields__})
     if a.batch:
-        import json
-
-        kinds = [Content(**d) for d in json.loads(a.contents.read_text())] if a.contents else [content]
-        run_batch([kinds[i % len(kinds)] for i in range(a.batch)], a.outdir, a.workers)
+        kinds = json.loads(a.layouts.read_text("utf-8"))
+        run_batch([kinds[i % len(kinds)] for i in range(a.batch)], a.outdir or a.layout, a.workers)
     else:
-        a.output.write_bytes(build_floor(content))
+        a.output.write_bytes(build_floor(json.loads(a.layout.read_text("utf-8"))))
     return 0
 
 

@@ -98,6 +98,10 @@ class HistoryEntry:
     reason: str = spec("text", value_default="", help="why, in a few words")
 
 
+#: the life of a sheet, in order: each step records who and when (checked_by/checked_on, approved_by/approved_on)
+SHEET_STATUSES = ("draft", "checked", "approved", "issued")
+
+
 @dataclass(frozen=True)
 class SheetInfo:
     """Identification and sign-off data printed on the sheet."""
@@ -107,7 +111,9 @@ class SheetInfo:
     site: str = spec("text", value_default="", help="plant or site name")
     prepared_by: str = spec("text", value_default="", help="engineer who prepared the settings")
     checked_by: str = spec("text", value_default="", help="engineer who checked them")
+    checked_on: str = spec("text", value_default="", help="date of the check, ISO form (with checked_by)")
     approved_by: str = spec("text", value_default="", help="licensed engineer who approves them")
+    approved_on: str = spec("text", value_default="", help="date of the approval, ISO form (with approved_by)")
     revision: int = spec(
         "integer",
         default=0,
@@ -121,9 +127,9 @@ class SheetInfo:
     status: str = spec(
         "choice",
         default="draft",
-        choices=("draft", "issued"),
+        choices=SHEET_STATUSES,
         value_default="draft",
-        help="draft until approved, then issued",
+        help="draft, then checked, approved and issued (an issued revision is locked)",
     )
     page_size: str = spec(
         "choice", default="A4", choices=("A4", "letter"), value_default="A4", help="paper size of the sheet"
@@ -681,6 +687,7 @@ def motor_rated_current(m: InductionMotor) -> float:
 def validate_case(case: MachineCase) -> list[str]:
     """Check physical sense across fields. Raises InputError for the impossible; returns warnings."""
     warnings: list[str] = []
+    validate_sheet(case.sheet)
     m = case.machine
     if isinstance(m, InductionMotor):
         warnings += _validate_motor(m)
@@ -704,6 +711,52 @@ def validate_case(case: MachineCase) -> list[str]:
     if g.method == "low-resistance" and g.fault_current_limit is None:
         warnings.append("grounding.fault_current_limit is missing: earth-fault sensitivity cannot be judged")
     return warnings
+
+
+def _iso_date(key: str, text: str) -> None:
+    """InputError unless ``text`` is empty or an ISO calendar date such as 2026-11-30."""
+    import datetime
+    import re
+
+    if text and not (re.fullmatch(r"\d{4}-\d{2}-\d{2}", text) and _is_date(datetime, text)):
+        raise InputError(key, f"expected an ISO date such as 2026-11-30, got {text!r}")
+
+
+def _is_date(datetime, text: str) -> bool:
+    try:
+        datetime.date.fromisoformat(text)
+    except ValueError:
+        return False
+    return True
+
+
+def validate_sheet(s: SheetInfo) -> None:
+    """The sheet's life: dates are ISO dates; each status after draft names who took the step and when.
+
+    ``checked`` needs checked_by and checked_on; ``approved`` also approved_by and approved_on; ``issued`` needs
+    the approver, the approval date and the revision date (the date the issued sheet carries).
+    """
+    for name in ("date", "checked_on", "approved_on"):
+        _iso_date(f"sheet.{name}", getattr(s, name))
+    for i, h in enumerate(s.history):
+        _iso_date(f"sheet.history[{i}].date", h.date)
+    step = SHEET_STATUSES.index(s.status) if s.status in SHEET_STATUSES else 0
+    needs = []
+    if step >= 1:
+        needs += [("checked_by", "who checked it"), ("checked_on", "the date of the check")]
+    if step >= 2:
+        needs += [("approved_by", "the approving engineer"), ("approved_on", "the date of the approval")]
+    if step >= 3:
+        needs.append(("date", "the date of this revision"))
+    for name, what in needs:
+        if not str(getattr(s, name) or "").strip():
+            raise InputError(f"sheet.{name}", f"a sheet with status = \"{s.status}\" needs {what}; got nothing")
+    for by, on in (("checked_by", "checked_on"), ("approved_by", "approved_on")):
+        if getattr(s, on) and not str(getattr(s, by) or "").strip():
+            raise InputError(f"sheet.{by}", f"sheet.{on} is given, so expected the name of who did it, got nothing")
+    if s.checked_on and s.approved_on and s.approved_on < s.checked_on:
+        raise InputError("sheet.approved_on", f"expected on or after sheet.checked_on ({s.checked_on}), "
+                                              f"got {s.approved_on}")
 
 
 def _validate_motor(m: InductionMotor) -> list[str]:

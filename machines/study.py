@@ -75,6 +75,7 @@ def sheet_data(case: MachineCase) -> dict:
     return {
         "tag": s.tag, "description": s.description, "site": s.site, "prepared_by": s.prepared_by,
         "checked_by": s.checked_by, "approved_by": s.approved_by, "revision": s.revision, "date": s.date,
+        "checked_on": s.checked_on, "approved_on": s.approved_on,
         "status": s.status, "page_size": s.page_size,
         "history": [{"revision": h.revision, "date": h.date, "by": h.by, "reason": h.reason} for h in s.history],
     }

@@ -14,6 +14,7 @@ wrapped in a ``<font>`` tag for the fallback font.
 from __future__ import annotations
 
 import os
+import re
 from functools import lru_cache
 from xml.sax.saxutils import escape
 
@@ -130,3 +131,94 @@ def _piece(text: str, main: bool, has_fallback: bool, bold: bool) -> str:
     if main or not has_fallback:
         return body
     return f'<font name="{FALLBACK_BOLD if bold else FALLBACK}">{body}</font>'
+
+
+# ---------------------------------------------------------------------------------------------------- formulas
+
+SUB, SUPER = "sub", "super"
+_SUPER_GROUP = re.compile(r"\^\(([^()]*)\)|\^([0-9A-Za-z−+-]+)")
+_SUBSCRIPT = re.compile(
+    r"(?<![A-Za-z])([A-Za-zα-ωΑ-Ω])_([A-Za-z0-9]{1,10})(?![A-Za-z0-9_])"  # I_LR, t_st, 3I_C0, V_rated
+    r"|(?<![A-Za-z0-9'])([IVXZKC])([0-2])(?![A-Za-z0-9.])"  # I2, V1, C0, K2
+    r"|(?<![A-Za-z0-9])(X'{0,2})([dq])(?![A-Za-z0-9])"  # Xd, X'd, X''d, Xq
+)
+
+
+def formula_segments(text: object) -> list[tuple[str, tuple[str, ...]]]:
+    """A formula written in plain text, as segments with their level: ``()``, ``("sub",)``, ``("super", "sub")``.
+
+    The study writes formulas the way one types them: ``I_LR`` (subscript LR), ``e^(−t_st/τ)`` (superscript with a
+    subscript inside), ``I2``, ``V1``, ``C0`` (sequence and zero-sequence subscripts), ``Xd``, ``X'd`` (reactance
+    subscripts). Anything else is text.
+
+    >>> formula_segments("k·I_B")
+    [('k·I', ()), ('B', ('sub',))]
+    >>> formula_segments("e^(−t_st/τ)")
+    [('e', ()), ('−t', ('super',)), ('st', ('super', 'sub')), ('/τ', ('super',))]
+    >>> formula_segments("I2/I1 and Xd")
+    [('I', ()), ('2', ('sub',)), ('/I', ()), ('1', ('sub',)), (' and X', ()), ('d', ('sub',))]
+    """
+    out: list[tuple[str, tuple[str, ...]]] = []
+    s = plain(text)
+    pos = 0
+    for m in _SUPER_GROUP.finditer(s):
+        out += _subscripts(s[pos:m.start()], ())
+        out += _subscripts(m.group(1) if m.group(1) is not None else m.group(2), (SUPER,))
+        pos = m.end()
+    out += _subscripts(s[pos:], ())
+    merged: list[tuple[str, tuple[str, ...]]] = []
+    for seg, level in out:
+        if merged and merged[-1][1] == level:
+            merged[-1] = (merged[-1][0] + seg, level)
+        elif seg:
+            merged.append((seg, level))
+    return merged
+
+
+def _subscripts(text: str, level: tuple[str, ...]) -> list[tuple[str, tuple[str, ...]]]:
+    out = []
+    pos = 0
+    for m in _SUBSCRIPT.finditer(text):
+        base, sub = next((m.group(i), m.group(i + 1)) for i in (1, 3, 5) if m.group(i) is not None)
+        out += [(text[pos:m.start()] + base, level), (sub, level + (SUB,))]
+        pos = m.end()
+    out.append((text[pos:], level))
+    return out
+
+
+def formula(text: object, bold: bool = False) -> str:
+    """Paragraph markup of study text with its formulas set properly (sub- and superscripts), escaped like markup.
+
+    >>> formula("Pickup current k·I_B")
+    'Pickup current k·I<sub>B</sub>'
+    >>> formula("3 < I_LR^2")
+    '3 &lt; I<sub>LR</sub><super>2</super>'
+    """
+    parts = []
+    for seg, level in formula_segments(text):
+        body = markup(seg, bold=bold)
+        for tag in reversed(level):
+            body = f"<{tag}>{body}</{tag}>"
+        parts.append(body)
+    return "".join(parts)
+
+
+def font_files() -> dict[str, str]:
+    """The TrueType files of the fonts registered for the sheet, by the name the PDF uses (for the benchmark floor)."""
+    import reportlab
+
+    have_fallback = register()
+    folder = os.path.join(os.path.dirname(reportlab.__file__), "fonts")
+    out = {name: os.path.join(folder, file) for name, file in _VERA.items()}
+    if have_fallback:
+        for directory in _DEJAVU_DIRS:
+            paths = {name: os.path.join(directory, file) for name, file in _DEJAVU.items()}
+            if all(os.path.isfile(p) for p in paths.values()):
+                out.update(paths)
+                break
+    return out
+
+
+def in_fallback(ch: str) -> bool:
+    """True when ``ch`` is not in the sheet font (it is set in the fallback font where there is one)."""
+    return not _in_main(ch)

@@ -6,7 +6,10 @@ Layout only: no pint, no calculation beyond choosing a unit prefix and rounding 
 from __future__ import annotations
 
 import math
+import re
 from typing import Any
+
+NBSP = "\u00a0"  #: a space a line never breaks at (between a number and its unit)
 
 # SI unit -> list of (threshold, display unit, factor); first threshold the magnitude reaches wins.
 _SCALES: dict[str, list[tuple[float, str, float]]] = {
@@ -75,6 +78,18 @@ def _stage(v: Any) -> str:
             parts.append(quantity(x, unit) if isinstance(x, (int, float)) else str(x))
         return " / ".join(parts)
     return quantity(v, "")
+
+
+def glue_units(text: str) -> str:
+    """``text`` with a no-break space between each number and the unit after it, so no line ends between them.
+
+    >>> glue_units("margin +0.0 s, 22.5 min") == "margin +0.0\u00a0s, 22.5\u00a0min"
+    True
+    """
+    return _NUMBER_UNIT.sub(NBSP, text)
+
+
+_NUMBER_UNIT = re.compile(r"(?<=[0-9]) (?=(?:[kMmµ]?(?:A|V|W|VA|Hz|Ω|s|min|h|pu|%|var|VAr)|°C|K)(?![A-Za-z0-9]))")
 
 
 def setting_primary(s: dict) -> str:

@@ -1,69 +1,82 @@
-"""Vector drawings for the sheet, from the record's :class:`machines.record.Drawing` objects (reportlab graphics).
+"""Vector drawings for the sheet: a record's :class:`machines.record.Drawing` laid out as a list of drawing operations.
 
-One function turns a record drawing into a reportlab ``Drawing`` of a given size: a ``LinePlot`` with logarithmic
-axes where the record asks for them (time-current curves are read log-log), linear axes otherwise; an R-X drawing
-keeps one scale on both axes so circles stay round, and shows the R and X axes through the origin.
+:func:`figure` turns a record drawing into plain data: paths (grid, axes, curves), marker sets and text runs, in
+points, with the origin at the drawing's lower-left corner. :func:`draw_ops` replays them on a reportlab canvas with
+its public drawing calls (one path per grid, per curve and per marker set). Time-current curves are read log-log; an
+R-X drawing keeps one scale on both axes so that circles stay round, with the R and X axes through the origin.
 
-Readable in black and white: every series has its own pen (solid, dashed or dotted line, and a marker when two
-series share a line style), alternately black and the sheet's one accent colour, and the legend under the plot
-draws each pen. Layout only: points outside the axis range are clipped (reportlab does not clip), values that a
-log axis cannot show (zero, negative) are left out; nothing is calculated.
+Readable in black and white: every series has its own dash pattern (solid, dashed, dotted, dash-dot, long dash …),
+point sets their own marker shape, and a number printed on each curve ties it to the legend, so nothing depends on
+the accent colour. Series that lie on top of each other are said to coincide in the legend; a series wholly off the
+scale (a fault current beyond the axis) is marked at the edge with its value. A time-current drawing in primary
+amperes gets a second current axis in relay-side amperes when the phase CT ratio is known.
+
+Layout only: points outside the axis range are clipped, values a log axis cannot show are left out; nothing is
+calculated beyond placing what the record holds.
 """
 
 from __future__ import annotations
 
 import math
-from typing import Iterable, NamedTuple
+import re
+from typing import NamedTuple
 
-from reports.fonts import SANS, plain, register
-from reports.formatting import number
+from reports.fonts import FALLBACK, SANS, SANS_BOLD, SUB, formula_segments, in_fallback, plain, register
+from reports.formatting import number, quantity
 
 ACCENT_HEX = "#0b5563"  # dark teal: the sheet's one accent colour
+BLACK, GRID_HEX, SUBGRID_HEX, LABEL_HEX = "#000000", "#8f8f8f", "#d4d4d4", "#333333"
 FONT_SIZE = 7.5
-_DASH = {"line": None, "step": None, "dashed": [5.0, 2.5], "dotted": [1.0, 1.8], "points": None}
-_MARKERS = ("FilledCircle", "Square", "FilledTriangle", "FilledDiamond", "Circle", "Triangle", "FilledSquare",
-            "Cross")
-_MARKERS_PER_CURVE = 5
+#: dash patterns, in the order they are handed out: solid, dashed, dotted, dash-dot, long dash, short dash, dash-dot-dot
+DASHES: tuple[tuple[float, ...] | None, ...] = (None, (6.0, 3.0), (1.2, 2.2), (7.0, 2.5, 1.2, 2.5), (13.0, 3.5),
+                                                  (3.0, 2.0), (7.0, 2.0, 1.2, 2.0, 1.2, 2.0))
+_STYLE_DASH = {"line": 0, "step": 0, "dashed": 1, "dotted": 2}
+MARKERS = ("circle", "square", "triangle", "diamond", "cross", "plus", "circle-open", "square-open",
+           "triangle-open", "diamond-open")
 _CIRCLE_POINTS = 145
+_COINCIDE_PT = 2.0  # two curves closer than this on paper over most of their length coincide
 
 
 class Pen(NamedTuple):
-    """How one series is drawn: colour, width, dash pattern (None: solid), marker name (None: no marker)."""
+    """How one series is drawn: colour, width, dash pattern (None: solid), marker (None: none), whether a line."""
 
-    color: object
+    color: str
     width: float
-    dash: list[float] | None
+    dash: tuple[float, ...] | None
     marker: str | None
     line: bool
 
 
-def accent():
-    from reportlab.lib.colors import HexColor
+def pens(styles) -> list[Pen]:
+    """A distinct pen for each series style, in order: distinct dash patterns for lines, marker shapes for points.
 
-    return HexColor(ACCENT_HEX)
-
-
-def pens(styles: Iterable[str]) -> list[Pen]:
-    """A distinct pen for each series style, in order: alternately black and accent; a marker on repeats.
+    Colours alternate black and the accent; they never carry the difference alone. When the dash patterns run out
+    a line also gets markers along it.
 
     >>> [(p.dash, p.marker, p.line) for p in pens(["line", "line", "points", "dashed"])]
-    [(None, None, True), (None, 'FilledCircle', True), (None, 'Square', False), ([5.0, 2.5], None, True)]
+    [(None, None, True), ((13.0, 3.5), None, True), (None, 'circle', False), ((6.0, 3.0), None, True)]
     """
-    from reportlab.lib.colors import black
-
-    out = []
-    seen: dict[str, int] = {}
-    markers_used = 0
+    out: list[Pen] = []
+    used: set[int] = set()
+    markers = 0
     for i, style in enumerate(styles):
-        key = "line" if style == "step" else style
-        n = seen.get(key, 0)
-        seen[key] = n + 1
+        color = BLACK if i % 2 == 0 else ACCENT_HEX
+        if style == "points":
+            out.append(Pen(color, 0.9, None, MARKERS[markers % len(MARKERS)], False))
+            markers += 1
+            continue
+        want = _STYLE_DASH.get(style, 0)
+        order = [want] + [k for k in (4, 3, 5, 6, 1, 2, 0) if k != want]
+        free = [k for k in order if k not in used]
         marker = None
-        if style == "points" or n > 0:
-            marker = _MARKERS[markers_used % len(_MARKERS)]
-            markers_used += 1
-        color = black if i % 2 == 0 else accent()
-        out.append(Pen(color, 1.1 if style == "dotted" else 1.0, _DASH.get(style), marker, style != "points"))
+        if free:
+            k = free[0]
+        else:  # more lines than patterns: markers along the line tell it apart
+            k = order[len(out) % len(order)]
+            marker = MARKERS[markers % len(MARKERS)]
+            markers += 1
+        used.add(k)
+        out.append(Pen(color, 1.3 if k == 2 else 1.0, DASHES[k], marker, True))
     return out
 
 
@@ -160,37 +173,27 @@ def _clip_segment(a, b, x0, x1, y0, y1):
     return start, end
 
 
-def markers_along(pieces: list[list[tuple[float, float]]], axes: Axes, size: tuple[float, float],
-                  count: int) -> list[tuple[float, float]]:
-    """``count`` marker positions spread evenly along the drawn length of a curve (as it appears on paper).
+def along(path: list[tuple[float, float]], fractions) -> list[tuple[float, float]]:
+    """Points at the given fractions of a paper polyline's length.
 
-    >>> markers_along([[(0.0, 0.0), (10.0, 0.0)]], Axes(0, 10, 0, 1, False, False), (100.0, 10.0), 2)
+    >>> along([(0.0, 0.0), (10.0, 0.0)], (0.25, 0.75))
     [(2.5, 0.0), (7.5, 0.0)]
     """
-    def paper(p):
-        x, y = _fwd(p[0], axes.log_x), _fwd(p[1], axes.log_y)
-        return ((x - x0) / (x1 - x0) * size[0], (y - y0) / (y1 - y0) * size[1])
-
-    x0, x1 = _fwd(axes.x0, axes.log_x), _fwd(axes.x1, axes.log_x)
-    y0, y1 = _fwd(axes.y0, axes.log_y), _fwd(axes.y1, axes.log_y)
-    segments = []
-    for piece in pieces:
-        for a, b in zip(piece, piece[1:]):
-            pa, pb = paper(a), paper(b)
-            segments.append((a, b, math.hypot(pb[0] - pa[0], pb[1] - pa[1])))
-    total = sum(length for _, _, length in segments)
+    lengths = [math.hypot(b[0] - a[0], b[1] - a[1]) for a, b in zip(path, path[1:])]
+    total = sum(lengths)
     if total <= 0:
-        return []
+        return [path[0]] * len(fractions) if path else []
     out = []
-    targets = [(k + 0.5) / count * total for k in range(count)]
-    run = 0.0
-    for a, b, length in segments:
-        while targets and targets[0] <= run + length:
-            f = (targets.pop(0) - run) / length if length else 0.0
-            ta = (_fwd(a[0], axes.log_x), _fwd(a[1], axes.log_y))
-            tb = (_fwd(b[0], axes.log_x), _fwd(b[1], axes.log_y))
-            out.append((_back(ta[0] + f * (tb[0] - ta[0]), axes.log_x), _back(ta[1] + f * (tb[1] - ta[1]), axes.log_y)))
-        run += length
+    for f in fractions:
+        target, run = f * total, 0.0
+        for (a, b), length in zip(zip(path, path[1:]), lengths):
+            if run + length >= target and length > 0:
+                u = (target - run) / length
+                out.append((a[0] + u * (b[0] - a[0]), a[1] + u * (b[1] - a[1])))
+                break
+            run += length
+        else:
+            out.append(path[-1])
     return out
 
 
@@ -255,46 +258,117 @@ def _extent(d, log_x: bool, log_y: bool):
     return xs, ys
 
 
-# ---------------------------------------------------------------------------------------------------- drawing
+def _usable_range(r, log: bool) -> bool:
+    """A given axis range that can be drawn (else the range is taken from the data)."""
+    if not r or len(r) != 2:
+        return False
+    lo, hi = float(r[0]), float(r[1])
+    return math.isfinite(lo) and math.isfinite(hi) and hi > lo and (lo > 0 or not log)
 
 
-def render(d, width: float, height: float):
-    """A reportlab graphics ``Drawing`` of ``width`` × at most ``height`` points for the record drawing ``d``.
+def _log_ticks(lo: float, hi: float, multiples=(1,)) -> list[float]:
+    out = []
+    for e in range(math.floor(math.log10(lo)) - 1, math.ceil(math.log10(hi)) + 1):
+        for m in multiples:
+            v = m * 10.0 ** e
+            if lo * (1 - 1e-9) <= v <= hi * (1 + 1e-9):
+                out.append(v)
+    return out
 
-    reportlab's check of every shape attribute as it is set is switched off while the drawing is built (the values
-    come from this module, not from the user; the tests build every kind of drawing with the check on, see
-    :data:`CHECK_SHAPES`): the same shapes, a good part of the build time saved.
+
+def _linear_ticks(lo: float, hi: float, step: float) -> list[float]:
+    n0, n1 = math.ceil(lo / step - 1e-9), math.floor(hi / step + 1e-9)
+    return [round(k * step, 12) for k in range(n0, n1 + 1)]
+
+
+# ---------------------------------------------------------------------------------------------------- text
+
+
+def text_runs(text: object, size: float = FONT_SIZE, bold: bool = False, formulas: bool = True) -> list[list]:
+    """Text as runs ``[text, font, size, rise]``: formulas with sub- and superscripts (unless ``formulas`` is
+    False: user text), characters the sheet font lacks in the fallback font."""
+    register()
+    runs: list[list] = []
+    main = SANS_BOLD if bold else SANS
+    for seg, level in (formula_segments(text) if formulas else [(plain(text), ())]):
+        scale = 0.72 ** len(level)
+        rise = 0.0
+        for tag in level:
+            rise += -0.28 * size if tag == SUB else 0.42 * size
+        piece, fb = "", None
+        for ch in seg:
+            f = in_fallback(ch)
+            if fb is not None and f != fb and piece:
+                runs.append([piece, FALLBACK if fb else main, round(size * scale, 2), round(rise, 2)])
+                piece = ""
+            fb = f
+            piece += ch
+        if piece:
+            runs.append([piece, FALLBACK if fb else main, round(size * scale, 2), round(rise, 2)])
+    return runs
+
+
+def runs_width(runs: list[list]) -> float:
+    from reportlab.pdfbase.pdfmetrics import stringWidth
+
+    return sum(stringWidth(t, font, size) for t, font, size, _ in runs)
+
+
+def _text(ops: list, x: float, y: float, text: object, size: float = FONT_SIZE, anchor: str = "start",
+          color: str = BLACK, angle: int = 0, bold: bool = False) -> tuple[float, float]:
+    """Add a text op; returns its (x start, width)."""
+    runs = text_runs(text, size, bold)
+    w = runs_width(runs)
+    shift = {"start": 0.0, "middle": w / 2, "end": w}[anchor]
+    if angle:
+        ops.append(["text", round(x, 2), round(y - shift, 2), runs, color, angle])
+    else:
+        ops.append(["text", round(x - shift, 2), round(y, 2), runs, color, 0])
+    return x - shift, w
+
+
+def _wrap(text: str, width: float, size: float) -> list[str]:
+    words, lines, line = plain(text).split(), [], ""
+    for w in words:
+        trial = f"{line} {w}".strip()
+        if line and runs_width(text_runs(trial, size)) > width:
+            lines.append(line)
+            line = w
+        else:
+            line = trial
+    return lines + ([line] if line else [])
+
+
+# ---------------------------------------------------------------------------------------------------- figure
+
+
+def _entry_points(d, log_x: bool, log_y: bool):
+    for s in d.series:
+        pts = [(float(x), float(y)) for x, y in s.points]
+        yield step_points(pts) if s.style == "step" else pts
+    if not (log_x or log_y):
+        for c in d.circles:
+            yield circle_points(tuple(map(float, c.center)), float(c.radius))
+
+
+def _unit_of(label: str) -> str:
+    """The unit of an axis from its title: ``Current [A primary]`` → ``A``."""
+    m = re.search(r"[\[(]([^\]), ]+)", label or "")
+    return m.group(1) if m else ""
+
+
+def figure(d, width: float, height: float, ct_ratio: tuple[float, str] | None = None) -> dict:
+    """The record drawing ``d`` laid out in ``width`` × at most ``height`` points: ``{"w", "h", "ops"}``.
+
+    ``ct_ratio`` (primary amperes per relay-side ampere, and the ratio as written) adds a relay-side current axis
+    along the top of a time-current drawing in primary amperes.
     """
-    from reportlab import rl_config
-
-    checking, rl_config.shapeChecking = rl_config.shapeChecking, int(CHECK_SHAPES)
-    try:
-        return _render(d, width, height)
-    finally:
-        rl_config.shapeChecking = checking
-
-
-CHECK_SHAPES = False  #: True: let reportlab validate each shape attribute while a drawing is built (for tests)
-
-
-def _render(d, width: float, height: float):
-    from reportlab.graphics.charts.axes import LogXValueAxis, LogYValueAxis, XValueAxis, YValueAxis
-    from reportlab.graphics.charts.lineplots import LinePlot
-    from reportlab.graphics.shapes import Drawing, Group, Line, String
-    from reportlab.graphics.widgets.markers import makeMarker
-    from reportlab.lib.colors import Color, black
-
     register()
     rx = d.kind == "r-x"
     log_x, log_y = (False, False) if rx else (bool(d.log_x), bool(d.log_y))
-    entries = [(s.label, s.style) for s in d.series] + [(c.label, c.style) for c in d.circles if not (log_x or log_y)]
+    entries = [(s.label, s.style) for s in d.series] + [(c.label, c.style) for c in d.circles
+                                                         if not (log_x or log_y)]
     all_pens = pens([style for _, style in entries])
-
-    legend_rows = _legend_layout([label for label, _ in entries], width - 20)
-    legend_h = 12.0 * len(legend_rows) + (6 if legend_rows else 0)
-    left, right, top, bottom = 52.0, 14.0, 8.0, 34.0
-    plot_w, plot_h = width - left - right, height - top - bottom - legend_h
-
     xs, ys = _extent(d, log_x, log_y)
     if not xs:
         xs, ys = [1.0, 10.0], [1.0, 10.0]
@@ -311,298 +385,368 @@ def _render(d, width: float, height: float):
         y0, y1 = _log_range(min(ys), max(ys))
     else:
         y0, y1, y_step = _linear_range(min(ys), max(ys), include_zero=rx)
+    axes = Axes(x0, x1, y0, y1, log_x, log_y)
+    points = list(_entry_points(d, log_x, log_y))
+    secondary = ct_ratio if (ct_ratio and log_x and d.kind == "time-current" and
+                             "primary" in (d.x_label or "").lower()) else None
+
+    # legend text (tags tie the curves to it), wrapped to the width
+    legend_w = width - 10
+    off_scale = [_off_scale(pts, axes) for pts in points]
+    legend_lines: list[tuple[int, list[str]]] = []
+    coincide = _coincidences(points, axes, all_pens)
+    for i, (label, _) in enumerate(entries):
+        text = plain(label)
+        if off_scale[i]:
+            text += f" (off the scale at {quantity(off_scale[i][1], _unit_of(d.x_label))})"
+        if i in coincide:
+            text += f"; coincides with {coincide[i] + 1}"
+        legend_lines.append((i, _wrap(text, legend_w - 48, FONT_SIZE) or [""]))
+    legend_h = sum(10.0 * len(lines) + 2.0 for _, lines in legend_lines) + 8.0
+
+    left, right, bottom = 50.0, 14.0, 30.0
+    top = 30.0 if secondary else 10.0
+    plot_w, plot_h = width - left - right, height - top - bottom - legend_h
     if rx:  # one scale on both axes: shrink the plot box to the ranges' aspect ratio
         scale = min(plot_w / (x1 - x0), plot_h / (y1 - y0))
-        extra_w = plot_w - scale * (x1 - x0)
+        extra = plot_w - scale * (x1 - x0)
         plot_w, plot_h = scale * (x1 - x0), scale * (y1 - y0)
-        left += extra_w / 2
+        left += extra / 2
         height = top + bottom + legend_h + plot_h
-    axes = Axes(x0, x1, y0, y1, log_x, log_y)
+    plot_h = max(plot_h, 60.0)
+    height = top + bottom + legend_h + plot_h
+    px0, py0 = left, bottom + legend_h
 
-    drawing = Drawing(width, height, initialFontName=SANS, initialFontSize=FONT_SIZE)
-    lp = LinePlot()
-    lp.x, lp.y, lp.width, lp.height = left, bottom + legend_h, plot_w, plot_h
-    lp.xValueAxis = LogXValueAxis() if log_x else XValueAxis()
-    lp.yValueAxis = LogYValueAxis() if log_y else YValueAxis()
-    grid = Color(0.55, 0.55, 0.55)
-    subgrid = Color(0.8, 0.8, 0.8)
-    for axis, lo, hi, step, log in ((lp.xValueAxis, x0, x1, x_step, log_x), (lp.yValueAxis, y0, y1, y_step, log_y)):
-        axis.valueMin, axis.valueMax = lo, hi
-        if step and not log:
-            axis.valueStep = step
-        axis.labels.fontName = SANS
-        axis.labels.fontSize = FONT_SIZE
-        axis.labelTextFormat = _tick_label
-        axis.visibleGrid = 1
-        axis.gridStrokeColor = grid
-        axis.gridStrokeWidth = 0.35
-        axis.strokeWidth = 0.8
-        axis.avoidBoundSpace = 0
+    fx0, fx1 = _fwd(x0, log_x), _fwd(x1, log_x)
+    fy0, fy1 = _fwd(y0, log_y), _fwd(y1, log_y)
+
+    def sx(v: float) -> float:
+        return px0 + (_fwd(v, log_x) - fx0) / (fx1 - fx0) * plot_w
+
+    def sy(v: float) -> float:
+        return py0 + (_fwd(v, log_y) - fy0) / (fy1 - fy0) * plot_h
+
+    ops: list = []
+    # grid: minor, then major, then the box
+    minor, major = [], []
+    for lo, hi, log, step, vertical in ((x0, x1, log_x, x_step, True), (y0, y1, log_y, y_step, False)):
         if log:
-            axis.subTickNum = 10
-            axis.visibleSubGrid = 1
-            axis.visibleSubTicks = 1
-            axis.subGridStrokeColor = subgrid
-            axis.subGridStrokeWidth = 0.25
-    lp.xValueAxis.labels.dy = -4
-    lp.yValueAxis.labels.dx = -4
-
-    data, styles = [], []
-    for (label, style), pen, pts in zip(entries, all_pens, _entry_points(d, log_x, log_y)):
-        if style == "step":
-            pts = step_points(pts)
-        pieces = [p for p in clip_polyline(pts, axes) if len(p) >= 2] if pen.line else []
-        for piece in pieces:
-            data.append(piece)
-            styles.append((pen, False))
-        if pen.marker:
-            if pen.line:
-                inside = markers_along(pieces, axes, (plot_w, plot_h), _MARKERS_PER_CURVE)
-            else:
-                inside = [(x, y) for x, y in pts if _inside(x, y, axes)]
-            if inside:
-                data.append(inside)
-                styles.append((pen, True))
-    if not data:  # an empty frame still needs one row; draw it invisibly
-        data, styles = [[(x0, y0), (x0, y0)]], [(Pen(None, 0, None, None, True), False)]
-    lp.data = data
-    for i, (pen, markers_only) in enumerate(styles):
-        line = lp.lines[i]
-        if markers_only:
-            line.lineStyle = "line"
-            line.strokeColor = pen.color
-            line.strokeWidth = 0
-            line.symbol = _marker(makeMarker, pen)
+            minor += [(vertical, v) for v in _log_ticks(lo, hi, range(2, 10))]
+            ticks = _log_ticks(lo, hi)
         else:
-            line.lineStyle = "joinedLine"
-            line.strokeColor = pen.color
-            line.strokeWidth = pen.width
-            line.strokeDashArray = pen.dash
-            line.symbol = None
-    drawing.add(lp)
-
-    # axes through the origin on an R-X plane
+            ticks = _linear_ticks(lo, hi, step or _nice_step(hi - lo))
+        major += [(vertical, v) for v in ticks]
+    _grid(ops, minor, SUBGRID_HEX, 0.25, sx, sy, px0, py0, plot_w, plot_h)
+    _grid(ops, major, GRID_HEX, 0.4, sx, sy, px0, py0, plot_w, plot_h)
+    ops.append(["path", BLACK, 0.8, None, [[px0, py0, px0 + plot_w, py0, px0 + plot_w, py0 + plot_h, px0,
+                                            py0 + plot_h, px0, py0]], None])
     if rx:
-        def sx(v):
-            return left + (v - x0) / (x1 - x0) * plot_w
-
-        def sy(v):
-            return bottom + legend_h + (v - y0) / (y1 - y0) * plot_h
-
+        axis = []
         if x0 < 0 < x1:
-            drawing.add(Line(sx(0), sy(y0), sx(0), sy(y1), strokeColor=black, strokeWidth=0.7))
+            axis.append([sx(0), py0, sx(0), py0 + plot_h])
         if y0 < 0 < y1:
-            drawing.add(Line(sx(x0), sy(0), sx(x1), sy(0), strokeColor=black, strokeWidth=0.7))
+            axis.append([px0, sy(0), px0 + plot_w, sy(0)])
+        if axis:
+            ops.append(["path", BLACK, 0.7, None, axis, None])
 
-    # axis titles
-    plot_bottom = bottom + legend_h
-    drawing.add(String(left + plot_w / 2, plot_bottom - 26, plain(d.x_label), fontName=SANS, fontSize=FONT_SIZE + 0.5,
-                       textAnchor="middle"))
-    ylab = Group(String(0, 0, plain(d.y_label), fontName=SANS, fontSize=FONT_SIZE + 0.5, textAnchor="middle"))
-    ylab.transform = (0, 1, -1, 0, left - 40, plot_bottom + plot_h / 2)
-    drawing.add(ylab)
+    # tick labels and axis titles
+    for vertical, v in major:
+        if vertical:
+            _text(ops, sx(v), py0 - 10, _tick(v), anchor="middle")
+        else:
+            _text(ops, px0 - 4, sy(v) - 2.6, _tick(v), anchor="end")
+    _text(ops, px0 + plot_w / 2, py0 - 22, d.x_label, FONT_SIZE + 0.5, anchor="middle")
+    _text(ops, px0 - 36, py0 + plot_h / 2, d.y_label, FONT_SIZE + 0.5, anchor="middle", angle=90)
+    if secondary:
+        _secondary_axis(ops, secondary, x0, x1, sx, px0, py0 + plot_h, plot_w)
+
+    # curves, markers, off-scale marks
+    paper_paths: dict[int, list[list[tuple[float, float]]]] = {}
+    for i, ((label, style), pen, pts) in enumerate(zip(entries, all_pens, points)):
+        if pen.line:
+            pieces = [p for p in clip_polyline(pts, axes) if len(p) >= 2]
+            paper = [[(sx(x), sy(y)) for x, y in piece] for piece in pieces]
+            paper_paths[i] = paper
+            if paper:
+                ops.append(["path", pen.color, pen.width, list(pen.dash) if pen.dash else None,
+                            [[round(c, 2) for pt in piece for c in pt] for piece in paper], None])
+            if pen.marker and paper:
+                at = [p for piece in paper for p in along(piece, (0.1, 0.3, 0.5, 0.7, 0.9))]
+                ops.append(_markers(pen, at))
+        else:
+            inside = [(sx(x), sy(y)) for x, y in pts if _inside(x, y, axes)]
+            paper_paths[i] = [inside] if inside else []
+            if inside:
+                ops.append(_markers(pen, inside))
+    _off_scale_marks(ops, off_scale, px0, py0, plot_w, plot_h, d.x_label)
+
+    # numbers on the curves: each entry's number where it is clear of the others
+    _curve_tags(ops, paper_paths, all_pens, (px0, py0, px0 + plot_w, py0 + plot_h), coincide)
 
     # legend
     y = legend_h - 12.0
-    for row in legend_rows:
-        for index, xpos in row:
-            label, style = entries[index]
-            pen = all_pens[index]
-            ly = y + 3
-            if pen.line:
-                drawing.add(Line(xpos, ly, xpos + 22, ly, strokeColor=pen.color, strokeWidth=pen.width,
-                                 strokeDashArray=pen.dash))
-            if pen.marker:
-                m = _marker(makeMarker, pen)
-                m.x, m.y = xpos + 11, ly
-                drawing.add(m)
-            drawing.add(String(xpos + 27, y, plain(label), fontName=SANS, fontSize=FONT_SIZE))
-        y -= 12.0
-    return lean(drawing)
+    for i, lines in legend_lines:
+        pen = all_pens[i]
+        if pen.line:
+            ops.append(["path", pen.color, pen.width, list(pen.dash) if pen.dash else None,
+                        [[10.0, y + 2.6, 34.0, y + 2.6]], None])
+        if pen.marker:
+            ops.append(_markers(pen, [(22.0, y + 2.6)]))
+        _text(ops, 40.0, y, str(i + 1), bold=True)
+        for k, line in enumerate(lines):
+            _text(ops, 50.0, y - 10.0 * k, line)
+        y -= 10.0 * len(lines) + 2.0
+    return {"w": round(width, 2), "h": round(height, 2), "ops": ops}
 
 
-# ---------------------------------------------------------------------------------------------------- lean tree
+def _grid(ops, lines, color, width, sx, sy, px0, py0, plot_w, plot_h) -> None:
+    sub = []
+    for vertical, v in lines:
+        if vertical:
+            x = round(sx(v), 2)
+            if px0 + 0.5 < x < px0 + plot_w - 0.5:
+                sub.append([x, py0, x, py0 + plot_h])
+        else:
+            y = round(sy(v), 2)
+            if py0 + 0.5 < y < py0 + plot_h - 0.5:
+                sub.append([px0, y, px0 + plot_w, y])
+    if sub:
+        ops.append(["path", color, width, None, sub, None])
 
 
-_IDENTITY = (1, 0, 0, 1, 0, 0)
-
-
-def lean(drawing):
-    """The same picture with fewer PDF operators: widgets expanded, plain groups dissolved, lines merged.
-
-    reportlab writes every node with its own save/restore, transform and pen: a LinePlot is a tree of groups with
-    identity or translate-only transforms (each tick label in its own group), and every grid line is a node. Here a
-    group that sets nothing but a translation is dissolved (its shapes moved by the translation), and consecutive
-    solid lines drawn with the same pen become one path of separate strokes. Draw order, pens and coordinates stay
-    as they were, so the page looks the same; a group with any other state or transform is kept as it is.
-    """
-    from reportlab.graphics.shapes import Drawing
-
-    contents = _lean_nodes(drawing.contents, 0.0, 0.0)
-    out = Drawing(drawing.width, drawing.height, *contents, initialFontName=drawing.initialFontName,
-                  initialFontSize=drawing.initialFontSize)
-    out.transform = drawing.transform
-    return out
-
-
-def _expanded(node):
-    while hasattr(node, "provideNode"):
-        node = node.provideNode()
-    return node
-
-
-def _lean_nodes(nodes, dx: float, dy: float) -> list:
-    from reportlab.graphics.shapes import Group, Line
-
-    flat: list = []
-    for node in nodes:
-        node = _expanded(node)
-        if node is None:
-            continue
-        if isinstance(node, Group):
-            t = tuple(node.transform)
-            if _group_state_free(node) and t[:4] == _IDENTITY[:4]:
-                flat += _lean_nodes(node.contents, dx + t[4], dy + t[5])
-                continue
-            if dx or dy:  # a kept group moves as a whole
-                if t[:4] != _IDENTITY[:4]:
-                    flat.append(_wrapped(node, dx, dy))
-                    continue
-                node.transform = (1, 0, 0, 1, t[4] + dx, t[5] + dy)
-            node.contents = _lean_nodes(node.contents, 0.0, 0.0)
-            flat.append(node)
-            continue
-        if (dx or dy) and not _moved(node, dx, dy):
-            flat.append(_wrapped(node, dx, dy))
-            continue
-        flat.append(node)
-    return _merge_lines(flat, Line)
-
-
-def _wrapped(node, dx: float, dy: float):
-    from reportlab.graphics.shapes import Group
-
-    g = Group(node)
-    g.transform = (1, 0, 0, 1, dx, dy)
-    return g
-
-
-def _group_state_free(group) -> bool:
-    from reportlab.graphics.renderbase import getStateDelta
-
-    return all(key == "transform" for key in getStateDelta(group))
-
-
-def _moved(node, dx: float, dy: float) -> bool:
-    """Shift a shape by (dx, dy) in place; False for a kind of shape this does not know how to move."""
-    from reportlab.graphics.shapes import Circle, Line, PolyLine, Polygon, Rect, String
-
-    if isinstance(node, Line):
-        node.x1 += dx
-        node.x2 += dx
-        node.y1 += dy
-        node.y2 += dy
-    elif isinstance(node, (String, Rect)):
-        node.x += dx
-        node.y += dy
-    elif isinstance(node, Circle):
-        node.cx += dx
-        node.cy += dy
-    elif isinstance(node, (PolyLine, Polygon)):
-        pts = list(node.points)
-        node.points = [v + (dx if i % 2 == 0 else dy) for i, v in enumerate(pts)]
-    else:
-        return False
-    return True
-
-
-def _merge_lines(nodes: list, line_class) -> list:
-    """Runs of solid lines with the same pen as one path (each line its own stroke)."""
-    from reportlab.graphics.renderbase import getStateDelta
-    from reportlab.graphics.shapes import Path
-
-    out: list = []
-    run: list = []
-    pen = None
-
-    def flush():
-        if len(run) == 1:
-            out.append(run[0])
-        elif run:
-            path = Path(fillColor=None, **{k: v for k, v in pen.items() if k != "fillColor"})
-            for ln in run:
-                path.moveTo(ln.x1, ln.y1)
-                path.lineTo(ln.x2, ln.y2)
-            out.append(path)
-        run.clear()
-
-    for node in nodes:
-        if type(node) is line_class:
-            delta = getStateDelta(node)
-            if not delta.get("strokeDashArray"):
-                if run and delta == pen:
-                    run.append(node)
-                    continue
-                flush()
-                run.append(node)
-                pen = delta
-                continue
-        flush()
-        out.append(node)
-    flush()
-    return out
-
-
-def _usable_range(r, log: bool) -> bool:
-    """A given axis range that can be drawn (else the range is taken from the data)."""
-    if not r or len(r) != 2:
-        return False
-    lo, hi = float(r[0]), float(r[1])
-    return math.isfinite(lo) and math.isfinite(hi) and hi > lo and (lo > 0 or not log)
+def _tick(v: float) -> str:
+    return number(v, 3)
 
 
 def _inside(x: float, y: float, axes: Axes) -> bool:
     return axes.x0 <= x <= axes.x1 and axes.y0 <= y <= axes.y1
 
 
-def _entry_points(d, log_x: bool, log_y: bool):
-    for s in d.series:
-        yield [(float(x), float(y)) for x, y in s.points]
-    if not (log_x or log_y):
-        for c in d.circles:
-            yield circle_points(tuple(map(float, c.center)), float(c.radius))
+def _markers(pen: Pen, at) -> list:
+    filled = not pen.marker.endswith("-open")
+    return ["markers", pen.marker.replace("-open", ""), 5.0, pen.color, filled,
+            [round(c, 2) for p in at for c in p]]
 
 
-def _marker(make, pen: Pen):
-    from reportlab.lib.colors import white
+def _secondary_axis(ops, ct: tuple[float, str], x0, x1, sx, left, top, plot_w) -> None:
+    """Relay-side amperes along the top edge: primary / (CT ratio)."""
+    factor, written = ct
+    lo, hi = x0 / factor, x1 / factor
+    ticks = _log_ticks(lo, hi, (1, 2, 5))
+    marks = []
+    for v in ticks:
+        x = round(sx(v * factor), 2)
+        marks.append([x, top, x, top + 4])
+        _text(ops, x, top + 6, _tick(v), anchor="middle")
+    if marks:
+        ops.append(["path", BLACK, 0.6, None, marks, None])
+    _text(ops, left + plot_w / 2, top + 16, f"Current [A relay side, CT {written}]", FONT_SIZE + 0.5,
+          anchor="middle")
 
-    m = make(pen.marker)
-    m.size = 5.5
-    m.strokeColor = pen.color
-    m.strokeWidth = 0.8
-    m.fillColor = pen.color if pen.marker.startswith("Filled") or pen.marker == "Cross" else white
-    return m
+
+def _off_scale(pts, axes: Axes) -> tuple[str, float] | None:
+    """('right' or 'left', x) when every drawable point of a series lies beyond one end of the current axis."""
+    xs = [x for x, y in pts if _fwd(x, axes.log_x) is not None and _fwd(y, axes.log_y) is not None]
+    if not xs:
+        return None
+    if min(xs) > axes.x1:
+        return "right", min(xs)
+    if max(xs) < axes.x0:
+        return "left", max(xs)
+    return None
 
 
-def _tick_label(value: float) -> str:
-    return number(value, 3)
+def _off_scale_marks(ops, off, px0, py0, plot_w, plot_h, x_label) -> None:
+    """An arrow at the edge for each series off the scale, with its number and value."""
+    k = 0
+    for i, where in enumerate(off):
+        if not where:
+            continue
+        side, x = where
+        y = py0 + plot_h - 14 - 12 * k
+        k += 1
+        edge = px0 + plot_w if side == "right" else px0
+        d = 1 if side == "right" else -1
+        ops.append(["path", BLACK, 0.9, None, [[edge - d * 4, y + 3, edge + d * 3, y + 3]], None])
+        ops.append(["path", None, 0, None, [[edge + d * 3, y, edge + d * 3, y + 6, edge + d * 8, y + 3]], BLACK])
+        text = f"{i + 1}: {quantity(x, _unit_of(x_label))}"
+        _text(ops, edge - d * 6, y + 0.5, text, anchor="end" if side == "right" else "start", bold=True)
 
 
-def _legend_layout(labels: list[str], width: float) -> list[list[tuple[int, float]]]:
-    """Legend entries placed left to right in rows: [[(entry index, x position), ...], ...]."""
-    from reportlab.pdfbase.pdfmetrics import stringWidth
+def _sample(path: list[tuple[float, float]], n: int) -> list[tuple[float, float]]:
+    return along(path, [(k + 0.5) / n for k in range(n)])
 
-    rows: list[list[tuple[int, float]]] = []
-    row: list[tuple[int, float]] = []
-    x = 10.0
-    for i, label in enumerate(labels):
-        w = 27 + stringWidth(plain(label), SANS, FONT_SIZE) + 14
-        if row and x + w > width:
-            rows.append(row)
-            row, x = [], 10.0
-        row.append((i, x))
-        x += w
-    if row:
-        rows.append(row)
-    return rows
 
+def _distance_to(p, segments) -> float:
+    best = math.inf
+    for (ax, ay), (bx, by) in segments:
+        dx, dy = bx - ax, by - ay
+        L = dx * dx + dy * dy
+        u = 0.0 if L == 0 else max(0.0, min(1.0, ((p[0] - ax) * dx + (p[1] - ay) * dy) / L))
+        best = min(best, math.hypot(ax + u * dx - p[0], ay + u * dy - p[1]))
+    return best
+
+
+def _coincidences(points, axes: Axes, all_pens) -> dict[int, int]:
+    """Entry index → the earlier entry it lies on (in the axes' own space, on a 500 × 400 pt plot)."""
+    fx0, fx1 = _fwd(axes.x0, axes.log_x), _fwd(axes.x1, axes.log_x)
+    fy0, fy1 = _fwd(axes.y0, axes.log_y), _fwd(axes.y1, axes.log_y)
+    if None in (fx0, fx1, fy0, fy1):
+        return {}
+
+    def paper(pts):
+        out = []
+        for piece in clip_polyline(pts, axes):
+            out.append([((_fwd(x, axes.log_x) - fx0) / (fx1 - fx0) * 500.0,
+                         (_fwd(y, axes.log_y) - fy0) / (fy1 - fy0) * 400.0) for x, y in piece])
+        return [p for p in out if len(p) >= 2]
+
+    paths = [paper(pts) if pen.line else [] for pts, pen in zip(points, all_pens)]
+    found: dict[int, int] = {}
+    for b in range(len(paths)):
+        if not paths[b]:
+            continue
+        samples = [p for piece in paths[b] for p in _sample(piece, 12)]
+        for a in range(b):
+            if not paths[a]:
+                continue
+            segs = [(p, q) for piece in paths[a] for p, q in zip(piece, piece[1:])]
+            if len(segs) > 80:
+                segs = segs[::math.ceil(len(segs) / 80)] + [segs[-1]]
+            close = sum(1 for p in samples if _distance_to(p, segs) <= _COINCIDE_PT)
+            if samples and close >= 0.8 * len(samples):
+                found[b] = a
+                break
+    return found
+
+
+def _curve_tags(ops, paper_paths, all_pens, box, coincide) -> None:
+    """Each entry's number on its curve, placed clear of the other numbers, on a white patch."""
+    placed: list[tuple[float, float, float, float]] = []
+    bx0, by0, bx1, by1 = box
+    for i in sorted(paper_paths):
+        pieces = paper_paths[i]
+        if not pieces:
+            continue
+        tag = str(i + 1) if i not in coincide else f"{coincide[i] + 1}={i + 1}"
+        w = runs_width(text_runs(tag, FONT_SIZE, True)) + 3
+        path = max(pieces, key=len)
+        candidates = along(path, (0.82, 0.62, 0.42, 0.22, 0.08, 0.95)) if len(path) > 1 else list(path)
+        choice = None
+        for cx, cy in candidates:
+            r = (cx + 2, cy + 2, cx + 2 + w, cy + 11)
+            if r[0] < bx0 or r[2] > bx1 - 1 or r[1] < by0 or r[3] > by1 - 1:
+                continue
+            if any(not (r[2] < q[0] or r[0] > q[2] or r[3] < q[1] or r[1] > q[3]) for q in placed):
+                continue
+            choice = r
+            break
+        if choice is None:
+            cx, cy = candidates[0]
+            choice = (min(max(cx + 2, bx0 + 1), bx1 - w - 1), min(max(cy + 2, by0 + 1), by1 - 12),
+                      0.0, 0.0)
+            choice = (choice[0], choice[1], choice[0] + w, choice[1] + 9)
+        placed.append(choice)
+        x, y = choice[0], choice[1]
+        ops.append(["path", None, 0, None, [[x, y, x + w, y, x + w, y + 9, x, y + 9]], "#ffffff"])
+        _text(ops, x + 1.5, y + 2, tag, color=all_pens[i].color, bold=True)
+
+
+# ---------------------------------------------------------------------------------------------------- replay
+
+
+def draw_ops(canv, ops) -> None:
+    """Replay a figure's operations on a reportlab canvas at its current origin (public canvas calls only)."""
+    from reportlab.lib.colors import HexColor
+
+    colors: dict[str, object] = {}
+
+    def color(hexa):
+        c = colors.get(hexa)
+        if c is None:
+            c = colors[hexa] = HexColor(hexa)
+        return c
+
+    canv.saveState()
+    canv.setLineJoin(1)
+    for op in ops:
+        kind = op[0]
+        if kind == "path":
+            _, stroke, width, dash, subpaths, fill = op
+            p = canv.beginPath()
+            for sp in subpaths:
+                p.moveTo(sp[0], sp[1])
+                for k in range(2, len(sp), 2):
+                    p.lineTo(sp[k], sp[k + 1])
+                if fill:
+                    p.close()
+            if stroke:
+                canv.setStrokeColor(color(stroke))
+                canv.setLineWidth(width)
+                if dash:
+                    canv.setDash(dash, 0)
+                else:
+                    canv.setDash()
+            if fill:
+                canv.setFillColor(color(fill))
+            canv.drawPath(p, stroke=1 if stroke else 0, fill=1 if fill else 0)
+        elif kind == "markers":
+            _, shape, size, col, filled, flat = op
+            p = canv.beginPath()
+            r = size / 2
+            for k in range(0, len(flat), 2):
+                _marker_path(p, shape, flat[k], flat[k + 1], r)
+            canv.setStrokeColor(color(col))
+            canv.setLineWidth(0.8)
+            canv.setDash()
+            if filled:
+                canv.setFillColor(color(col))
+            elif shape not in ("cross", "plus"):
+                canv.setFillColor(color("#ffffff"))
+            canv.drawPath(p, stroke=1, fill=0 if shape in ("cross", "plus") else 1)
+        elif kind == "text":
+            _, x, y, runs, col, angle = op
+            canv.setFillColor(color(col))
+            if angle:
+                canv.saveState()
+                canv.translate(x, y)
+                canv.rotate(angle)
+                t = canv.beginText(0, 0)
+            else:
+                t = canv.beginText(x, y)
+            for text, font, size, rise in runs:
+                t.setFont(font, size)
+                t.setRise(rise)
+                t.textOut(text)
+            canv.drawText(t)
+            if angle:
+                canv.restoreState()
+    canv.restoreState()
+
+
+def _marker_path(p, shape: str, x: float, y: float, r: float) -> None:
+    if shape == "circle":
+        p.circle(x, y, r)
+    elif shape == "square":
+        p.rect(x - r * 0.85, y - r * 0.85, 1.7 * r, 1.7 * r)
+    elif shape == "triangle":
+        p.moveTo(x, y + r * 1.1)
+        p.lineTo(x - r, y - r * 0.7)
+        p.lineTo(x + r, y - r * 0.7)
+        p.close()
+    elif shape == "diamond":
+        p.moveTo(x, y + r * 1.15)
+        p.lineTo(x + r, y)
+        p.lineTo(x, y - r * 1.15)
+        p.lineTo(x - r, y)
+        p.close()
+    elif shape == "cross":
+        p.moveTo(x - r, y - r)
+        p.lineTo(x + r, y + r)
+        p.moveTo(x - r, y + r)
+        p.lineTo(x + r, y - r)
+    else:  # plus
+        p.moveTo(x - r, y)
+        p.lineTo(x + r, y)
+        p.moveTo(x, y - r)
+        p.lineTo(x, y + r)

@@ -1,43 +1,57 @@
-"""The printable settings sheet: a reportlab story built from a settings record.
+"""The printable settings sheet, built from a settings record in two steps: a layout, then the PDF.
 
-Order (what the engineer signs, what the contractor hands over, what maintenance files): identification, machine
-and system data as entered, derived values, the settings table with each function's basis, findings (fails first),
-the safety notice; then the drawings, the commissioning test table, the revision history, the sign-off block and
-the inputs fingerprint. Every page carries a footer with the tag, revision, status, inputs fingerprint and
-"page x of y". The tag, revision and fingerprint are also written to the PDF's /Keywords so that
-``relaywright verify`` can compare a sheet with a machine file.
+:func:`sheet_layout` turns a record into a layout: plain data (JSON-ready) naming every block in order —
+paragraphs with their markup and style, tables with their cells, widths and style commands, drawings as lists of
+drawing operations — and the page furniture (footer lines, draft mark, document information). :func:`render_layout`
+sets a layout with reportlab's public API. ``benchmarks/floor_sheet.py`` sets the same saved layout with plain
+reportlab, so the benchmark's floor is the same document.
 
-Layout only: the rows come from :mod:`reports.tables`, the drawings from :mod:`reports.plots`; every user string is
-escaped by :func:`reports.fonts.markup` before it reaches a Paragraph. Built with ``invariant=True``, so the same
-record gives the same bytes.
+Order (what the engineer signs, what the technician keys in, what maintenance files): identification, machine and
+system data as entered, derived values, the settings with each function's basis and the values they rest on, the
+derived tables, findings (fails first), the safety notice; the keying list; the drawings; the commissioning test
+table, the revision history (with what changed since the previous revision), the sign-off block and the inputs
+fingerprint. Every page carries a footer with the tag, revision, status, inputs fingerprint and "page x of y"; a
+sheet that is not issued says DRAFT at the top of every page. The tag, revision and fingerprint are also written to
+the PDF's /Keywords so that ``relaywright verify`` can compare a sheet with a machine file. The PDF is dated with
+the revision date and is otherwise invariant: the same record gives the same bytes.
 """
 
 from __future__ import annotations
 
 import io
-from functools import lru_cache, partial
+from functools import lru_cache
 from typing import NamedTuple
 
 from machines.errors import InputError, one_line
-from reports.notices import SAFETY_NOTICE
 from reports import tables
-from reports.fonts import SANS, SANS_BOLD, SANS_BOLD_ITALIC, SANS_ITALIC, in_main_font, markup, plain, register
-from reports.plots import ACCENT_HEX, render
+from reports.fonts import SANS, SANS_BOLD, SANS_BOLD_ITALIC, SANS_ITALIC, font_files, formula, in_main_font, \
+    markup, plain, register
+from reports.formatting import glue_units
+from reports.notices import SAFETY_NOTICE
+from reports.plots import ACCENT_HEX, figure
 
 PAGE_SIZES = ("A4", "letter")
 KEYWORDS_PREFIX = "relaywright settings sheet"
-_MARGIN_X, _MARGIN_TOP, _MARGIN_BOTTOM = 40.0, 40.0, 50.0
+LAYOUT_FORMAT = "relaywright.layout/1"
+MARGIN_X, MARGIN_TOP, MARGIN_BOTTOM = 40.0, 40.0, 50.0
+PAGES_FORM = "rwPageTotal"  #: the form holding the page count, drawn after "page x of" on every page
+GREY, DARK, RULE_GREY = "#555555", "#222222", "#8a8a8a"
+_SIZES = {"a4": (595.2755905511812, 841.8897637795277), "letter": (612.0, 792.0)}
+_PAD = 3.0
 
 
-def page_size_of(name: str | None):
-    """reportlab page size for ``"A4"`` or ``"letter"`` (any letter case)."""
-    from reportlab.lib.pagesizes import A4, letter
+class SignatureBox(NamedTuple):
+    """Where the approver's signature goes: page index (0-based) and the rectangle (x1, y1, x2, y2) in points."""
 
+    page: int
+    box: tuple[float, float, float, float]
+
+
+def page_size_of(name: str | None) -> tuple[float, float]:
+    """Page size in points for ``"A4"`` or ``"letter"`` (any letter case)."""
     key = (name or "A4").strip().lower()
-    if key == "a4":
-        return A4
-    if key == "letter":
-        return letter
+    if key in _SIZES:
+        return _SIZES[key]
     raise InputError("page_size", f"expected A4 or letter, got {one_line(name)}")
 
 
@@ -57,491 +71,746 @@ def _version() -> str:
         return ""
 
 
+def pdf_date(iso: str | None) -> str:
+    """The PDF date string of an ISO date (midnight UTC); reportlab's fixed date when there is none.
+
+    >>> pdf_date("2026-11-20"), pdf_date("")
+    ("D:20261120000000+00'00'", "D:20000101000000+00'00'")
+    """
+    text = str(iso or "")
+    if len(text) == 10 and text[4] == "-" and text[7] == "-" and (text[:4] + text[5:7] + text[8:]).isdigit():
+        return f"D:{text[:4]}{text[5:7]}{text[8:]}000000+00'00'"
+    return "D:20000101000000+00'00'"
+
+
 # ---------------------------------------------------------------------------------------------------- styles
 
-
-class _Styles:
-    def __init__(self):
-        from reportlab.lib.colors import HexColor, black
-        from reportlab.lib.enums import TA_RIGHT
-        from reportlab.lib.styles import ParagraphStyle
-
-        self.accent = HexColor(ACCENT_HEX)
-        self.grey = HexColor("#555555")
-        base = ParagraphStyle("body", fontName=SANS, fontSize=8.5, leading=10.8, textColor=black)
-        self.body = base
-        self.cell = ParagraphStyle("cell", base, fontSize=7.8, leading=9.4)
-        self.cell_bold = ParagraphStyle("cellb", self.cell, fontName=SANS_BOLD)
-        self.cell_right = ParagraphStyle("cellr", self.cell, alignment=TA_RIGHT)
-        self.basis = ParagraphStyle("basis", self.cell, fontName=SANS_ITALIC, fontSize=7.3, leading=8.9,
-                                    textColor=HexColor("#222222"))
-        self.head = ParagraphStyle("head", self.cell, fontName=SANS_BOLD, textColor=self.accent)
-        self.small = ParagraphStyle("small", base, fontSize=7.2, leading=8.8, textColor=self.grey)
-        self.footer = ParagraphStyle("footer", base, fontSize=7.5, leading=9, textColor=self.grey)
-        self.label = ParagraphStyle("label", base, fontSize=6.3, leading=7.5, textColor=self.grey)
-        self.value = ParagraphStyle("value", base, fontSize=9.5, leading=11.5)
-        self.kicker = ParagraphStyle("kicker", base, fontName=SANS_BOLD, fontSize=9, leading=11,
-                                     textColor=self.accent)
-        self.tag = ParagraphStyle("tag", base, fontName=SANS_BOLD, fontSize=17, leading=20.5, spaceBefore=2)
-        self.description = ParagraphStyle("description", base, fontSize=10, leading=12.5, spaceAfter=6)
-        self.h1 = ParagraphStyle("h1", base, fontName=SANS_BOLD, fontSize=11, leading=13.5, textColor=self.accent,
-                                 spaceBefore=10, spaceAfter=3)
-        self.h2 = ParagraphStyle("h2", base, fontName=SANS_BOLD, fontSize=9, leading=11, spaceBefore=6,
-                                 spaceAfter=2)
-        self.notice = ParagraphStyle("notice", base, fontSize=8.3, leading=10.6)
-        self.alarm = ParagraphStyle("alarm", base, fontName=SANS_BOLD, fontSize=9, leading=11.5, spaceAfter=4)
+#: paragraph styles by name (reportlab ParagraphStyle arguments; colours as hex)
+STYLES: dict[str, dict] = {
+    "body": dict(fontName=SANS, fontSize=8.5, leading=10.8),
+    "cell": dict(fontName=SANS, fontSize=7.8, leading=9.4),
+    "cellb": dict(fontName=SANS_BOLD, fontSize=7.8, leading=9.4),
+    "set": dict(fontName=SANS_BOLD, fontSize=8.2, leading=9.6),
+    "basis": dict(fontName=SANS_ITALIC, fontSize=7.3, leading=8.9, textColor=DARK),
+    "head": dict(fontName=SANS_BOLD, fontSize=7.8, leading=9.4, textColor=ACCENT_HEX),
+    "small": dict(fontName=SANS, fontSize=7.2, leading=8.8, textColor=GREY),
+    "label": dict(fontName=SANS, fontSize=6.3, leading=7.5, textColor=GREY),
+    "value": dict(fontName=SANS, fontSize=9.5, leading=11.5),
+    "valueb": dict(fontName=SANS_BOLD, fontSize=9.5, leading=11.5),
+    "kicker": dict(fontName=SANS_BOLD, fontSize=9, leading=11, textColor=ACCENT_HEX),
+    "tag": dict(fontName=SANS_BOLD, fontSize=17, leading=20.5, spaceBefore=2),
+    "description": dict(fontName=SANS, fontSize=10, leading=12.5, spaceAfter=6),
+    "h1": dict(fontName=SANS_BOLD, fontSize=11, leading=13.5, textColor=ACCENT_HEX, spaceBefore=10, spaceAfter=3),
+    "h2": dict(fontName=SANS_BOLD, fontSize=9, leading=11, spaceBefore=6, spaceAfter=2),
+    "notice": dict(fontName=SANS, fontSize=8.3, leading=10.6),
+    "alarm": dict(fontName=SANS_BOLD, fontSize=9, leading=11.5, spaceAfter=4),
+}
+_BOLD = (SANS_BOLD, SANS_BOLD_ITALIC)
 
 
-def _p(text: object, style) -> object:
-    return _p_raw(markup(text, bold=style.fontName in (SANS_BOLD, SANS_BOLD_ITALIC)), style)
+def _para(text: object, style: str, *, study: bool = False) -> list:
+    """A paragraph block: ``study`` text (labels, notes, sentences) gets its formulas set, user text is escaped."""
+    bold = STYLES[style]["fontName"] in _BOLD
+    body = _f(text, bold=bold) if study else markup(text, bold=bold)
+    return ["p", glue_units(body), style]
 
 
-@lru_cache(maxsize=1)
-def _paragraph_class():
-    from reportlab.platypus import Paragraph
-
-    class SheetParagraph(Paragraph):
-        """A Paragraph that keeps its line breaks for a width it was already wrapped to.
-
-        reportlab wraps a table cell's paragraph to the same column width several times (row heights, page split,
-        drawing); the line breaks depend on the width alone, so the second and later wraps reuse the first.
-        """
-
-        _wrapped_for = None
-
-        def wrap(self, availWidth, availHeight):
-            if self._wrapped_for == availWidth:
-                return self.width, self.height
-            result = super().wrap(availWidth, availHeight)
-            self._wrapped_for = availWidth
-            return result
-
-        def split(self, availWidth, availHeight):
-            self._wrapped_for = None
-            return super().split(availWidth, availHeight)
-
-    return SheetParagraph
+def _f(text: object, bold: bool = False) -> str:
+    """Markup of study text: machine-file keys named as the sheet names them, formulas set."""
+    return formula(tables.readable_keys(plain(text)), bold=bold)
 
 
-@lru_cache(maxsize=1)
-def _table_class():
-    from reportlab.platypus import Table
-
-    class SheetTable(Table):
-        """A Table that writes its one-line, left-aligned text cells in one text object.
-
-        reportlab draws each text cell as its own text object (with its own font, colour and width computation);
-        here the cells' strings are collected while the table draws and written together, each at the same origin,
-        in the same font and colour, just before the table's lines. Cells do not overlap, so the page looks the same.
-        Any other cell (a Paragraph, text with a line break, other alignment, a link) is drawn by reportlab.
-        """
-
-        def _drawCell(self, cellval, cellstyle, pos, size):
-            if type(cellval) is not str or cellstyle.alignment != "LEFT" or "\n" in cellval or \
-                    cellstyle.direction or cellstyle.shaping or cellstyle.href or cellstyle.destination or \
-                    cellstyle.valign not in ("TOP", "BOTTOM", "MIDDLE"):
-                return super()._drawCell(cellval, cellstyle, pos, size)
-            if not cellval:
-                return None  # an empty cell draws nothing
-            colpos, rowpos = pos
-            rowheight = size[1]
-            leading, fontsize = cellstyle.leading, cellstyle.fontsize
-            if cellstyle.valign == "TOP":
-                y = rowpos + rowheight - cellstyle.topPadding - fontsize
-            elif cellstyle.valign == "BOTTOM":
-                y = rowpos + cellstyle.bottomPadding + leading - fontsize
-            else:
-                y = rowpos + (cellstyle.bottomPadding + rowheight - cellstyle.topPadding + leading) / 2.0 - fontsize
-            pending = self.__dict__.setdefault("_sheet_text", [])
-            pending.append((colpos + cellstyle.leftPadding, y, cellval, cellstyle))
-            return None
-
-        def _drawLines(self):
-            pending = self.__dict__.pop("_sheet_text", None)
-            if pending:
-                t = self.canv.beginText()
-                font = color = None
-                for x, y, text, cs in pending:
-                    if font != (cs.fontname, cs.fontsize, cs.leading):
-                        font = (cs.fontname, cs.fontsize, cs.leading)
-                        t.setFont(*font)
-                    if color is None or cs.color != color:
-                        color = cs.color
-                        t.setFillColor(color)
-                    t.setTextOrigin(x, y)
-                    t._textOut(text)
-                self.canv.drawText(t)
-            return super()._drawLines()
-
-    return SheetTable
-
-
-def _heading(text: str, st: _Styles) -> list:
-    from reportlab.platypus import CondPageBreak, HRFlowable, Paragraph
-
-    rule = HRFlowable(width="100%", thickness=0.8, color=st.accent, spaceBefore=0, spaceAfter=4)
-    return [CondPageBreak(90), Paragraph(markup(text, bold=True), st.h1), rule]
+def _raw(markup_text: str, style: str) -> list:
+    return ["p", glue_units(markup_text), style]
 
 
 class _Cell(NamedTuple):
-    """A table cell's user text and style, resolved by :func:`_table` into a plain string or a Paragraph."""
-
     text: str
-    style: object
+    style: str
+    study: bool = False
 
 
-def _c(text: object, style) -> _Cell:
-    return _Cell(plain(text), style)
+def _c(text: object, style: str = "cell", study: bool = False) -> _Cell:
+    return _Cell(plain(text), style, study)
 
 
-_PAD = 3.0
-
-
-def _table(rows, widths, style_cmds, repeat: int = 0):
-    """A Table; a text cell that fits its column on one line in the sheet font is drawn as a plain string.
-
-    A plain string is not parsed as markup (so it needs no escaping) and costs a fraction of a Paragraph, which
-    reportlab wraps several times per table; text that needs wrapping or the fallback font stays a Paragraph.
-    """
+def _one_line(cell: _Cell, width: float) -> bool:
+    """True when a cell can be drawn as a plain string: one line in the sheet font, no formula to set."""
     from reportlab.pdfbase.pdfmetrics import stringWidth
-    from reportlab.lib.colors import black
-    from reportlab.platypus import TableStyle
 
-    cmds: list = []
-    out_rows = []
-    blocks: dict[tuple, list] = {}  # open blocks of plain-string cells: [first row, last row, c0, c1, style]
-    done: list[list] = []
+    text = cell.text
+    if "\n" in text or not in_main_font(text):
+        return False
+    if cell.study and (formula(text) != markup(text) or tables.readable_keys(text) != text):
+        return False
+    st = STYLES[cell.style]
+    return stringWidth(text, st["fontName"], st["fontSize"]) <= width - 2 * _PAD
+
+
+def _table(rows, widths, cmds=(), repeat: int = 0) -> dict:
+    """A table block; a text cell that fits its column on one line is a plain string (styled by commands)."""
+    out_rows, extra = [], []
     for r, row in enumerate(rows):
         out_row = []
-        runs: list[list] = []  # [first column, last column, style] of plain-string cells in one style
         for c, cell in enumerate(row):
             if isinstance(cell, _Cell):
-                st = cell.style
-                text = cell.text
-                if not text:
+                if not cell.text:
                     out_row.append("")
-                elif "\n" not in text and in_main_font(text) and \
-                        stringWidth(text, st.fontName, st.fontSize) <= widths[c] - 2 * _PAD:
-                    if runs and runs[-1][1] == c - 1 and runs[-1][2] is st:
-                        runs[-1][1] = c
-                    else:
-                        runs.append([c, c, st])
-                    out_row.append(text)
+                elif _one_line(cell, widths[c]):
+                    out_row.append(cell.text)
+                    st = STYLES[cell.style]
+                    if st["fontName"] != SANS:
+                        extra.append(["FONTNAME", [c, r], [c, r], st["fontName"]])
+                    if st["fontSize"] != 7.8:
+                        extra.append(["FONTSIZE", [c, r], [c, r], st["fontSize"]])
+                        extra.append(["LEADING", [c, r], [c, r], st["leading"]])
+                    if st.get("textColor"):
+                        extra.append(["TEXTCOLOR", [c, r], [c, r], st["textColor"]])
                 else:
-                    out_row.append(_p(text, st))
+                    out_row.append(_para(cell.text, cell.style, study=cell.study))
             else:
                 out_row.append(cell)
-        for c0, c1, st in runs:  # a run continuing the same columns and style from the row above extends its block
-            key = (c0, c1, id(st))
-            block = blocks.get(key)
-            if block and block[1] == r - 1:
-                block[1] = r
-            else:
-                if block:
-                    done.append(block)
-                blocks[key] = [r, r, c0, c1, st]
         out_rows.append(out_row)
-    for r0, r1, c0, c1, st in sorted(done + list(blocks.values()), key=lambda b: (b[0], b[2])):
-        a, b = (c0, r0), (c1, r1)  # one set of style commands per block of cells, not per cell
-        if st.fontName != SANS:
-            cmds.append(("FONTNAME", a, b, st.fontName))
-        cmds += [("FONTSIZE", a, b, st.fontSize), ("LEADING", a, b, st.leading)]
-        if st.textColor != black:
-            cmds.append(("TEXTCOLOR", a, b, st.textColor))
-    t = _table_class()(out_rows, colWidths=widths, repeatRows=repeat, hAlign="LEFT")
-    base = [("FONTNAME", (0, 0), (-1, -1), SANS), ("VALIGN", (0, 0), (-1, -1), "TOP"),
-            ("LEFTPADDING", (0, 0), (-1, -1), _PAD),
-            ("RIGHTPADDING", (0, 0), (-1, -1), _PAD), ("TOPPADDING", (0, 0), (-1, -1), 2),
-            ("BOTTOMPADDING", (0, 0), (-1, -1), 2.5)]
-    t.setStyle(TableStyle(base + cmds + list(style_cmds)))
-    return t
+    base = [["FONTNAME", [0, 0], [-1, -1], SANS], ["FONTSIZE", [0, 0], [-1, -1], 7.8],
+            ["LEADING", [0, 0], [-1, -1], 9.4], ["VALIGN", [0, 0], [-1, -1], "TOP"],
+            ["LEFTPADDING", [0, 0], [-1, -1], _PAD], ["RIGHTPADDING", [0, 0], [-1, -1], _PAD],
+            ["TOPPADDING", [0, 0], [-1, -1], 2], ["BOTTOMPADDING", [0, 0], [-1, -1], 2.5]]
+    return {"t": "table", "rows": out_rows, "widths": [round(w, 3) for w in widths],
+            "cmds": base + _merge_cmds(extra) + [_cmd(c) for c in cmds], "repeat": repeat}
+
+
+def _merge_cmds(cmds: list) -> list:
+    """Per-cell style commands of consecutive cells of one row merged into one command per run."""
+    out: list = []
+    for c in cmds:
+        last = out[-1] if out else None
+        if last and last[0] == c[0] and last[3:] == c[3:] and last[2][1] == c[1][1] and last[2][0] == c[1][0] - 1:
+            last[2] = [c[2][0], c[2][1]]
+        else:
+            out.append([c[0], list(c[1]), list(c[2])] + list(c[3:]))
+    return out
+
+
+def _cmd(c) -> list:
+    return [c[0], list(c[1]), list(c[2])] + list(c[3:])
+
+
+def _heading(text: str) -> list:
+    return [{"t": "cond", "h": 90}, {"t": "p", **_pd(_para(text, "h1"))},
+            {"t": "rule", "thickness": 0.8, "color": ACCENT_HEX, "after": 4}]
+
+
+def _pd(p: list) -> dict:
+    return {"text": p[1], "style": p[2]}
+
+
+def _p(text: object, style: str, study: bool = False) -> dict:
+    return {"t": "p", **_pd(_para(text, style, study=study))}
 
 
 # ---------------------------------------------------------------------------------------------------- sections
 
 
-def _identification(record, st: _Styles, width: float) -> list:
-    from reportlab.platypus import Paragraph
-
+def _identification(record, width: float) -> list:
     rows = dict(tables.identification_rows(record))
-    out = [Paragraph("PROTECTION SETTINGS SHEET", st.kicker), _p(rows["Tag"], st.tag)]
+    out = [{"t": "p", "text": "PROTECTION SETTINGS SHEET", "style": "kicker"}, _p(rows["Tag"], "tag")]
     if rows["Description"]:
-        out.append(_p(rows["Description"], st.description))
+        out.append(_p(rows["Description"], "description"))
 
     def box(label: str, bold: bool = False):
-        value = markup(rows[label], bold=bold) or "&nbsp;"
-        return [Paragraph(label.upper(), st.label),
-                Paragraph(f"<b>{value}</b>" if bold else value, st.value)]
+        return ["stack", [["p", label.upper(), "label"],
+                          _para(rows[label], "valueb" if bold else "value") if rows[label] else
+                          ["p", "&nbsp;", "value"]]]
 
-    issued = (record.sheet or {}).get("status") == "issued"
+    issued = tables.status_of(record) == "issued"
     grid = [[box("Site"), "", box("Machine"), box("Practice")],
             [box("Revision"), box("Date"), box("Status", bold=True), ""]]
     w = width / 4
-    out.append(_table(grid, [w] * 4, [
-        ("SPAN", (0, 0), (1, 0)), ("SPAN", (2, 1), (3, 1)),
-        ("BOX", (0, 0), (-1, -1), 0.8, st.accent), ("INNERGRID", (0, 0), (-1, -1), 0.4, st.grey),
-        ("TOPPADDING", (0, 0), (-1, -1), 3), ("BOTTOMPADDING", (0, 0), (-1, -1), 4),
-    ] + ([] if issued else [("LINEBELOW", (2, 1), (3, 1), 1.6, st.accent)])))
+    cmds = [("SPAN", (0, 0), (1, 0)), ("SPAN", (2, 1), (3, 1)), ("BOX", (0, 0), (-1, -1), 0.8, ACCENT_HEX),
+            ("INNERGRID", (0, 0), (-1, -1), 0.4, GREY), ("TOPPADDING", (0, 0), (-1, -1), 3),
+            ("BOTTOMPADDING", (0, 0), (-1, -1), 4)]
+    if not issued:
+        cmds.append(("LINEBELOW", (2, 1), (3, 1), 1.6, ACCENT_HEX))
+    out.append(_table(grid, [w] * 4, cmds))
     return out
 
 
-def _pairs_table(sections, st: _Styles, width: float):
-    """Label/value pairs two to a row, with a heading row per section."""
+def _pairs_table(sections, width: float, changed: set[str] = frozenset(), study: bool = False) -> dict:
+    """Label/value pairs two to a row, with a heading row per section; a changed pair gets a bar."""
     rows, cmds = [], []
     for title, pairs in sections:
         if title:
             cmds += [("SPAN", (0, len(rows)), (-1, len(rows))),
-                     ("LINEBELOW", (0, len(rows)), (-1, len(rows)), 0.4, st.grey)]
+                     ("LINEBELOW", (0, len(rows)), (-1, len(rows)), 0.4, GREY)]
             if rows:
                 cmds.append(("TOPPADDING", (0, len(rows)), (-1, len(rows)), 6))
-            rows.append([_c(title, st.cell_bold), "", "", ""])
+            rows.append([_c(title, "cellb"), "", "", ""])
         for i in range(0, len(pairs), 2):
             row = []
-            for label, value, *note in pairs[i:i + 2]:
-                cell = markup(value)
-                if note and note[0]:
-                    cell += f"<br/><font size='6.5' color='#555555'>{markup(note[0])}</font>"
-                row += [_c(label, st.small), _p_raw(cell, st.cell)]
+            for k, (label, value, *rest) in enumerate(pairs[i:i + 2]):
+                note = rest[0] if rest else ""
+                key = rest[1] if len(rest) > 1 else ""
+                text = markup(value)
+                if note:
+                    text += f"<br/><font size='6.5' color='{GREY}'>{_f(note) if study else markup(note)}</font>"
+                row += [_c(label, "small", study=True), _raw(text, "cell")]
+                if key and key in changed:
+                    cmds.append(("LINEBEFORE", (2 * k, len(rows)), (2 * k, len(rows)), 2.5, ACCENT_HEX))
             rows.append(row + [""] * (4 - len(row)))
     return _table(rows, [width * f for f in (0.2, 0.3, 0.2, 0.3)], cmds)
 
 
-def _inputs(record, st: _Styles, width: float) -> list:
-    out = _heading("Machine and system data, as entered", st)
-    sections = tables.input_sections(record)
-    out.append(_pairs_table(sections, st, width) if sections else _p("No data entered.", st.body))
-    derived = tables.derived_rows(record)
-    derived_tables = tables.derived_tables(record)
-    if derived or derived_tables:
-        out += [_condbreak(60), _p("Derived by the study", st.h2)]
+def _inputs(record, width: float, changed: set[str]) -> list:
+    out = _heading("Machine and system data, as entered")
+    sections = []
+    for (title, pairs), section in zip(tables.input_sections(record), [s for s, t in (record.inputs or {}).items()
+                                                                       if isinstance(t, dict) and t]):
+        keys = list((record.inputs or {}).get(section) or {})
+        sections.append((title, [(label, value, note, f"{section}.{key}") for (label, value, note), key
+                                 in zip(pairs, keys)]))
+    out.append(_pairs_table(sections, width, changed) if sections else _p("No data entered.", "body"))
+    derived = [(label, value, note, f"derived.{key}") for (label, value, note), key
+               in zip(tables.derived_rows(record), [k for k, s in record.derived.items()
+                                                    if not tables._is_table(s.value)])]
     if derived:
-        out.append(_pairs_table([("", derived)], st, width))
-    for title, header, rows in derived_tables:
-        n = len(header)
-        body = [[_c(h, st.head) for h in header]] + [[_c(v, st.cell) for v in row] for row in rows]
-        out += [_condbreak(50), _p(title, st.cell_bold),
-                _table(body, [width * 0.8 / n] * n, [("LINEBELOW", (0, 0), (-1, 0), 0.6, st.accent),
-                                                     ("LINEBELOW", (0, 1), (-1, -1), 0.25, st.grey)], repeat=1)]
+        out += [{"t": "cond", "h": 60}, _p("Derived by the study", "h2"),
+                _pairs_table([("", derived)], width, changed, study=True)]
     return out
 
 
-def _condbreak(height: float):
-    from reportlab.platypus import CondPageBreak
-
-    return CondPageBreak(height)
+_SETTINGS_COLS = (("ID", 0.06), ("Function", 0.16), ("Setting", 0.19), ("Primary", 0.105),
+                  ("Set on relay", 0.125), ("Source", 0.115), ("Note", 0.245))
 
 
-_SETTINGS_COLS = (("ID", 0.065), ("Function", 0.175), ("Setting", 0.18), ("Primary", 0.13),
-                  ("Relay side (secondary)", 0.115), ("Source", 0.145), ("Note", 0.19))
-
-
-def _settings(record, st: _Styles, width: float) -> list:
-    out = _heading("Settings", st)
+def _settings(record, width: float, changed: set[str]) -> list:
+    out = [{"t": "cond", "h": 220}] + _heading("Settings")  # the heading goes with the first function's rows
     blocks = tables.settings_blocks(record)
     if not blocks:
-        return out + [_p("The study produced no settings for this machine.", st.body)]
-    rows = [[_c(name, st.head) for name, _ in _SETTINGS_COLS]]
-    cmds = [("LINEBELOW", (0, 0), (-1, 0), 1.0, st.accent)]
+        return out + [_p("The study produced no settings for this machine.", "body")]
+    out.append(_p("Set on relay: the value to key in, relay side (secondary) where a CT or VT applies, rounded to "
+                  "the relay's setting step; every check and test on this sheet uses it.", "small"))
+    rows = [[_c(name, "head") for name, _ in _SETTINGS_COLS]]
+    cmds = [("LINEBELOW", (0, 0), (-1, 0), 1.0, ACCENT_HEX)]
     for block in blocks:
         first = len(rows)
         for r in block.rows:
-            rows.append([_c(r.fid, st.cell_bold), _c(r.function, st.cell_bold), _c(r.setting, st.cell),
-                         _c(r.primary, st.cell), _c(r.relay_side, st.cell), _c(r.source, st.cell),
-                         _c(r.note, st.cell)])
-        basis = markup(block.basis) if block.basis else ""
+            to_set = _c(r.relay_side, "set") if not r.step else _raw(
+                f"{markup(r.relay_side, bold=True)}<br/><font name='{SANS}' size='6.5' color='{GREY}'>step "
+                f"{markup(r.step)}</font>", "set")
+            rows.append([_c(r.fid, "cellb"), _c(r.function, "cellb", True), _c(r.setting, "cell", True),
+                         _c(r.primary), to_set, _c(r.source), _c(r.note, "cell", True)])
+            if f"{block.fid}.{r.key}" in changed or (r is block.rows[0] and block.fid in changed):
+                cmds.append(("LINEBEFORE", (0, len(rows) - 1), (0, len(rows) - 1), 2.5, ACCENT_HEX))
+        basis = _f(block.basis) if block.basis else ""
         if block.references:
-            basis += ("  " if basis else "") + f"<font name='{SANS}'>[{markup(block.references)}]</font>"
+            basis += ("  " if basis else "") + f"<font name='{SANS}'>[{_f(block.references)}]</font>"
         if basis:
-            rows.append(["", _p_raw(f"Basis: {basis}", st.basis), "", "", "", "", ""])
+            rows.append(["", _raw(f"Basis: {basis}", "basis"), "", "", "", "", ""])
             cmds.append(("SPAN", (1, len(rows) - 1), (-1, len(rows) - 1)))
-        cmds.append(("LINEBELOW", (0, len(rows) - 1), (-1, len(rows) - 1), 0.5, st.grey))
+        cmds.append(("LINEBELOW", (0, len(rows) - 1), (-1, len(rows) - 1), 0.5, GREY))
         cmds.append(("NOSPLIT", (0, first), (-1, len(rows) - 1)))
         if first > 1:
             cmds.append(("TOPPADDING", (0, first), (-1, first), 4))
     legend = ("Source: <b>standard</b> the cited standard's rule; <b>common practice</b> a usual default without a "
               "published limit, to be reviewed; <b>maker data</b> or <b>entered</b> from the machine file; "
-              "<b>override</b> the engineer's value in place of the computed one, checked the same way; "
-              "<b>derived</b> computed from the values above.")
-    return out + [_table(rows, [width * f for _, f in _SETTINGS_COLS], cmds, repeat=1), _spacer(3),
-                  _p_raw(legend, st.small)]
+              "<b>override</b> the engineer's value in place of the computed one, checked the same way.")
+    out += [_table(rows, [width * f for _, f in _SETTINGS_COLS], cmds, repeat=1), _spacer(3), _raw(legend, "small")]
+    out = [b if isinstance(b, dict) else {"t": "p", **_pd(b)} for b in out]
+    out += _function_values(blocks, width, changed)
+    out += _derived_tables(record, width)
+    return out
 
 
-def _p_raw(markup_text: str, style):
-    return _paragraph_class()(markup_text, style)
+def _function_values(blocks, width: float, changed: set[str]) -> list:
+    """Each function's values that are not keyed into the relay: what the settings achieve, windows, sizes."""
+    rows = [[_c(h, "head") for h in ("ID", "Value", "", "Note")]]
+    cmds = [("LINEBELOW", (0, 0), (-1, 0), 1.0, ACCENT_HEX), ("LINEBELOW", (0, 1), (-1, -1), 0.25, GREY)]
+    for block in blocks:
+        for i, d in enumerate(block.derived):
+            rows.append([_c(block.fid if i == 0 else "", "cellb"), _c(d.label, "cell", True), _c(d.value),
+                         _c(d.note, "cell", True)])
+            if f"{block.fid}.{d.key}" in changed:
+                cmds.append(("LINEBEFORE", (0, len(rows) - 1), (0, len(rows) - 1), 2.5, ACCENT_HEX))
+    if len(rows) == 1:
+        return []
+    return [{"t": "cond", "h": 80}, _p("Values the settings rest on (not keyed into the relay)", "h2"),
+            _table(rows, [width * f for f in (0.06, 0.39, 0.2, 0.35)], cmds, repeat=1)]
 
 
-def _findings(record, st: _Styles, width: float) -> list:
-    out = _heading("Findings", st)
+def _derived_tables(record, width: float) -> list:
+    out = []
+    for title, header, rows in tables.derived_tables(record):
+        n = len(header)
+        body = [[_c(h, "head", True) for h in header]] + [[_c(v) for v in row] for row in rows]
+        out += [{"t": "cond", "h": 80}, _p(title, "h2", study=True),
+                _table(body, [width * 0.8 / n] * n, [("LINEBELOW", (0, 0), (-1, 0), 0.6, ACCENT_HEX),
+                                                     ("LINEBELOW", (0, 1), (-1, -1), 0.25, GREY)], repeat=1)]
+    return out
+
+
+def _findings(record, width: float) -> list:
+    out = _heading("Findings")
     rows = tables.finding_rows(record)
     counts = {w: sum(1 for r in rows if r.status == w) for w in ("FAIL", "WARN", "ok")}
     if counts["FAIL"]:
         out.append(_p(f"{counts['FAIL']} check(s) failed. Do not apply these settings until every failed check is "
-                      "resolved and the sheet is reissued.", st.alarm))
+                      "resolved and the sheet is reissued.", "alarm"))
     if not rows:
-        return out + [_p("The study reported no findings.", st.body)]
-    out.append(_p(f"{counts['FAIL']} failed, {counts['WARN']} warning(s), {counts['ok']} passed.", st.small))
-    body = [[_c("Result", st.head), _c("Function", st.head), _c("Finding", st.head)]]
-    cmds = [("LINEBELOW", (0, 0), (-1, 0), 1.0, st.accent), ("LINEBELOW", (0, 1), (-1, -1), 0.3, st.grey)]
+        return out + [_p("The study reported no findings.", "body")]
+    out.append(_p(f"{counts['FAIL']} failed, {counts['WARN']} warning(s), {counts['ok']} passed.", "small"))
+    body = [[_c("Result", "head"), _c("Function", "head"), _c("Finding", "head")]]
+    cmds = [("LINEBELOW", (0, 0), (-1, 0), 1.0, ACCENT_HEX), ("LINEBELOW", (0, 1), (-1, -1), 0.3, GREY)]
     for r in rows:
-        style = st.cell_bold if r.status in ("FAIL", "WARN") else st.cell
-        body.append([_c(r.status, style), _c(r.fid or "machine", st.cell), _c(r.message, style)])
+        style = "cellb" if r.status in ("FAIL", "WARN") else "cell"
+        body.append([_c(r.status, style), _c(r.fid or "machine"), _c(r.message, style, True)])
         if r.status == "FAIL":
-            cmds.append(("BOX", (0, len(body) - 1), (0, len(body) - 1), 1.2, st.accent))
+            cmds.append(("BOX", (0, len(body) - 1), (0, len(body) - 1), 1.2, ACCENT_HEX))
     return out + [_table(body, [width * 0.08, width * 0.1, width * 0.82], cmds, repeat=1)]
 
 
-def _notice(st: _Styles, width: float) -> list:
-    from reportlab.platypus import Paragraph, Spacer
-
-    cell = [Paragraph("Safety notice", st.h2), _p(SAFETY_NOTICE, st.notice)]
-    return [Spacer(1, 8), _table([[cell]], [width], [("BOX", (0, 0), (-1, -1), 1.2, st.accent),
-                                                     ("LEFTPADDING", (0, 0), (-1, -1), 7),
-                                                     ("RIGHTPADDING", (0, 0), (-1, -1), 7),
-                                                     ("BOTTOMPADDING", (0, 0), (-1, -1), 6)])]
+def _notice(width: float) -> list:
+    cell = ["stack", [["p", "Safety notice", "h2"], _para(SAFETY_NOTICE, "notice")]]
+    return [_spacer(8), _table([[cell]], [width], [("BOX", (0, 0), (-1, -1), 1.2, ACCENT_HEX),
+                                                   ("LEFTPADDING", (0, 0), (-1, -1), 7),
+                                                   ("RIGHTPADDING", (0, 0), (-1, -1), 7),
+                                                   ("BOTTOMPADDING", (0, 0), (-1, -1), 6)])]
 
 
-def _drawings(record, st: _Styles, width: float, frame_height: float) -> list:
-    from reportlab.platypus import KeepTogether
-
-    drawings = list(record.drawings)
-    for f in record.functions:
-        drawings += f.drawings
-    out = _heading("Drawings", st)
-    if not drawings:
-        return out + [_p("The study produced no drawings for this machine.", st.body)]
-    height = min((frame_height - 60) / 2 - 24, width * 0.72) if len(drawings) > 1 else \
-        min(frame_height * 0.62, width * 0.85)
-    for d in drawings:
-        out.append(KeepTogether([_p(d.title, st.h2), render(d, width, height)]))
+def _keying(record, width: float, changed: set[str]) -> list:
+    out = _heading("Keying list (for the relay technician)")
+    out.append(_p("Key these values into the relay in this order: first the setup, then each function. Values are "
+                  "relay side (secondary), rounded to the relay's setting step. Functions marked off are left out of "
+                  "service. " + tables.OUTPUTS_NOTE, "small"))
+    setup = [[_c("Relay setup", "head"), _c("Value", "head")]]
+    for label, value in tables.keying_setup(record):
+        setup.append([_c(label, "cell", True), _c(value, "set")])
+    out.append(_table(setup, [width * 0.4, width * 0.6], [("LINEBELOW", (0, 0), (-1, 0), 1.0, ACCENT_HEX),
+                                                          ("LINEBELOW", (0, 1), (-1, -1), 0.25, GREY)]))
+    out.append(_spacer(6))
+    cols = (("ID", 0.07), ("Function / setting", 0.39), ("Value to key in", 0.19), ("Step", 0.1),
+            ("Output", 0.17), ("Done", 0.08))
+    rows = [[_c(h, "head") for h, _ in cols]]
+    cmds = [("LINEBELOW", (0, 0), (-1, 0), 1.0, ACCENT_HEX)]
+    for f in tables.keying_list(record):
+        first = len(rows)
+        state = "ON" if f.state == "on" else "OFF (out of service)"
+        rows.append([_c(f.fid, "cellb"), _c(f.title, "cellb", True), _c(state, "set"), "", _c(f.outputs, "small"),
+                     ""])
+        cmds += [("SPAN", (3, first), (3, first)), ("LINEABOVE", (0, first), (-1, first), 0.6, GREY)]
+        for r in f.rows:
+            rows.append(["", _c(r.label, "cell", True), _c(r.value, "set"), _c(r.step, "small"),
+                         _c(r.output, "small"), ""])
+            cmds.append(("BOX", (5, len(rows) - 1), (5, len(rows) - 1), 0.5, GREY))
+            if f"{f.fid}.{r.key}" in changed:
+                cmds.append(("LINEBEFORE", (0, len(rows) - 1), (0, len(rows) - 1), 2.5, ACCENT_HEX))
+        cmds.append(("NOSPLIT", (0, first), (-1, len(rows) - 1)))
+    out.append(_table(rows, [width * f for _, f in cols], cmds, repeat=1))
     return out
 
 
-_TEST_COLS = (("No.", 0.08), ("Test (initial state)", 0.30), ("Applied, primary", 0.1),
+def _ct_ratio(record) -> tuple[float, str] | None:
+    """(primary amperes per relay-side ampere, the ratio as written) of the phase CT, from the machine file."""
+    import re
+
+    text = str(((record.inputs or {}).get("instruments") or {}).get("phase_ct") or "")
+    m = re.fullmatch(r"\s*([0-9.]+)\s*/\s*([0-9.]+)\s*A\s*", text)
+    if not m:
+        return None
+    try:
+        primary, secondary = float(m.group(1)), float(m.group(2))
+    except ValueError:
+        return None
+    return (primary / secondary, f"{m.group(1)}/{m.group(2)} A") if primary > 0 and secondary > 0 else None
+
+
+def _drawings(record, width: float, frame_height: float) -> list:
+    drawings = list(record.drawings)
+    for f in record.functions:
+        drawings += f.drawings
+    out = _heading("Drawings")
+    if not drawings:
+        return out + [_p("The study produced no drawings for this machine.", "body")]
+    ct = _ct_ratio(record)
+    full = frame_height - 60
+    half = (frame_height - 60) / 2 - 24
+    for i, d in enumerate(drawings):
+        main = d.kind == "time-current" and i == 0 and record.kind == "induction-motor"
+        height = full if (main or len(drawings) == 1) else half
+        if i and main is False and len(drawings) > 1 and i == 1 and drawings[0].kind == "time-current" \
+                and record.kind == "induction-motor":
+            out.append({"t": "break"})
+        fig = figure(d, width, height, ct_ratio=ct)
+        out.append({"t": "keep", "items": [_p(d.title, "h2", study=True), {"t": "figure", **fig}]})
+    return out
+
+
+_TEST_COLS = (("No.", 0.09), ("Test (initial state)", 0.29), ("Applied, primary", 0.1),
               ("Applied, relay side", 0.1), ("Expected time", 0.09), ("Accepted band", 0.145),
               ("Measured time", 0.11), ("Pass / fail", 0.075))
 
 
-def _tests(record, st: _Styles, width: float) -> list:
-    out = _heading("Commissioning tests", st)
+def _tests(record, width: float) -> list:
+    out = _heading("Commissioning tests")
     rows = tables.commissioning_rows(record)
     if not rows:
-        return out + [_p("The study produced no test points.", st.body)]
+        return out + [_p("The study produced no test points.", "body")]
     out.append(_p("Inject each value with the settings of this sheet applied to the relay, starting from the "
                   "initial state given; write the measured operate time and pass or fail. The accepted band is the "
                   "expected time plus and minus its tolerance; the letter in brackets points to the tolerance rule "
-                  "under the table.", st.small))
-    body = [[_c(name, st.head) for name, _ in _TEST_COLS]]
+                  "under the table.", "small"))
+    body = [[_c(name, "head") for name, _ in _TEST_COLS]]
     for r in rows:
-        test = markup(r.test)
+        test = _f(r.test)
         if r.initial_state and r.initial_state != "—":
-            test += f"<br/><font color='#555555'>initial state: {markup(r.initial_state)}</font>"
-        body.append([_c(r.number, st.cell_bold), _p_raw(test, st.cell),
-                     _c(r.applied_primary, st.cell), _c(r.applied_secondary, st.cell), _c(r.expected, st.cell),
-                     _c(r.band + (f" [{r.tolerance_key}]" if r.tolerance_key else ""), st.cell), "", ""])
-    cmds = [("LINEBELOW", (0, 0), (-1, 0), 1.0, st.accent), ("LINEBELOW", (0, 1), (-1, -1), 0.3, st.grey),
-            ("BOX", (-2, 1), (-1, -1), 0.6, st.grey), ("INNERGRID", (-2, 1), (-1, -1), 0.6, st.grey),
+            test += f"<br/><font color='{GREY}'>initial state: {_f(r.initial_state)}</font>"
+        body.append([_c(r.number, "cellb"), _raw(test, "cell"), _c(r.applied_primary), _c(r.applied_secondary),
+                     _c(r.expected), _c(r.band + (f" [{r.tolerance_key}]" if r.tolerance_key else "")), "", ""])
+    cmds = [("LINEBELOW", (0, 0), (-1, 0), 1.0, ACCENT_HEX), ("LINEBELOW", (0, 1), (-1, -1), 0.3, GREY),
+            ("BOX", (-2, 1), (-1, -1), 0.6, GREY), ("INNERGRID", (-2, 1), (-1, -1), 0.6, GREY),
             ("TOPPADDING", (0, 1), (-1, -1), 4), ("BOTTOMPADDING", (0, 1), (-1, -1), 6)]
     out.append(_table(body, [width * f for _, f in _TEST_COLS], cmds, repeat=1))
     for key, rule in tables.tolerance_notes(record):
-        out.append(_p(f"[{key}] tolerance: {rule}", st.small))
-    blanks = [[_c("Tested by", st.small), "", _c("Date", st.small), "", _c("Relay and firmware", st.small), "",
-               _c("Test set", st.small), ""]]
+        out.append(_p(f"[{key}] tolerance: {rule}", "small", study=True))
+    blanks = [[_c("Tested by", "small"), "", _c("Date", "small"), "", _c("Relay and firmware", "small"), "",
+               _c("Test set", "small"), ""]]
     out.append(_table(blanks, [width * f for f in (0.09, 0.16, 0.05, 0.12, 0.14, 0.18, 0.08, 0.18)],
-                      [("LINEBELOW", (1, 0), (1, 0), 0.5, st.grey), ("LINEBELOW", (3, 0), (3, 0), 0.5, st.grey),
-                       ("LINEBELOW", (5, 0), (5, 0), 0.5, st.grey), ("LINEBELOW", (7, 0), (7, 0), 0.5, st.grey),
+                      [("LINEBELOW", (1, 0), (1, 0), 0.5, GREY), ("LINEBELOW", (3, 0), (3, 0), 0.5, GREY),
+                       ("LINEBELOW", (5, 0), (5, 0), 0.5, GREY), ("LINEBELOW", (7, 0), (7, 0), 0.5, GREY),
                        ("TOPPADDING", (0, 0), (-1, -1), 14)]))
     return out
 
 
-def _history(record, st: _Styles, width: float) -> list:
-    out = _heading("Revision history", st)
-    body = [[_c(h, st.head) for h in ("Revision", "Date", "By", "Reason")]]
+def _history(record, width: float, changes) -> list:
+    out = _heading("Revision history")
+    body = [[_c(h, "head") for h in ("Revision", "Date", "By", "Reason")]]
     for rev, date, by, reason in tables.history_rows(record):
-        body.append([_c(rev, st.cell), _c(date, st.cell), _c(by, st.cell), _c(reason, st.cell)])
-    return out + [_table(body, [width * f for f in (0.1, 0.14, 0.22, 0.54)],
-                         [("LINEBELOW", (0, 0), (-1, 0), 1.0, st.accent),
-                          ("LINEBELOW", (0, 1), (-1, -1), 0.3, st.grey)], repeat=1)]
+        body.append([_c(rev), _c(date), _c(by), _c(reason)])
+    out.append(_table(body, [width * f for f in (0.1, 0.14, 0.22, 0.54)],
+                      [("LINEBELOW", (0, 0), (-1, 0), 1.0, ACCENT_HEX),
+                       ("LINEBELOW", (0, 1), (-1, -1), 0.3, GREY)], repeat=1))
+    if changes is not None:
+        previous, items = changes
+        out.append(_p(f"Changed since revision {previous}", "h2"))
+        if not items:
+            out.append(_p("Nothing that the sheet prints has changed.", "body"))
+        else:
+            out.append(_p("Rows marked with a bar in the left margin of the tables above changed; old → new.",
+                          "small"))
+            body = [[_c(h, "head") for h in ("Changed", "Was", "Now")]]
+            for what, old, new in items:
+                body.append([_c(what, "cell", True), _c(old), _c(new, "cellb")])
+            out.append(_table(body, [width * f for f in (0.4, 0.3, 0.3)],
+                              [("LINEBELOW", (0, 0), (-1, 0), 1.0, ACCENT_HEX),
+                               ("LINEBELOW", (0, 1), (-1, -1), 0.25, GREY),
+                               ("LINEBEFORE", (0, 1), (0, -1), 2.5, ACCENT_HEX)], repeat=1))
+    return out
 
 
-def _signoff(record, st: _Styles, width: float) -> list:
-    from reportlab.platypus import KeepTogether
-
-    out = _heading("Sign-off", st)
-    body = [[_c(h, st.head) for h in ("", "Name", "Date", "Signature")]]
+def _signoff(record, width: float) -> list:
+    out = _heading("Sign-off")
+    body = [[_c(h, "head") for h in ("", "Name", "Date", "Signature")]]
+    sig_w, sig_h = width * 0.36 - 2 * _PAD, 34.0
     for role, name, date in tables.signoff_rows(record):
-        body.append([_c(role, st.cell_bold), _c(name, st.value), _c(date, st.value), ""])
-    cmds = [("LINEBELOW", (1, 1), (-1, -1), 0.6, st.grey), ("TOPPADDING", (0, 1), (-1, -1), 16),
-            ("VALIGN", (0, 1), (-1, -1), "BOTTOM")]
+        cell = ["spot", round(sig_w, 2), sig_h] if role == "Approved" else ""
+        body.append([_c(role, "cellb"), _c(name, "value"), _c(date, "value"), cell])
+    cmds = [("LINEBELOW", (1, 1), (-1, -1), 0.6, GREY), ("TOPPADDING", (0, 1), (-1, -1), 16),
+            ("VALIGN", (0, 1), (-1, -1), "BOTTOM"), ("TOPPADDING", (3, 3), (3, 3), 2)]
     out.append(_table(body, [width * f for f in (0.14, 0.32, 0.18, 0.36)], cmds))
-    fp = _p(f"Inputs fingerprint: {record.inputs_fingerprint}", st.cell)
+    fp = _p(f"Inputs fingerprint: {record.inputs_fingerprint}", "cell")
     expl = _p("The fingerprint identifies the validated machine data these settings were computed from. "
               "To check that a sheet still matches its machine file: relaywright verify SHEET.pdf --machine FILE.",
-              st.small)
-    return [KeepTogether(out + [_spacer(8), fp, expl])]
+              "small")
+    return [{"t": "keep", "items": out + [_spacer(8), fp, expl]}]
 
 
-def _spacer(h: float):
-    from reportlab.platypus import Spacer
-
-    return Spacer(1, h)
+def _spacer(h: float) -> dict:
+    return {"t": "space", "h": h}
 
 
-# ---------------------------------------------------------------------------------------------------- pages
+# ---------------------------------------------------------------------------------------------------- changes
 
 
-def _footer_lines(record) -> tuple[str, str]:
+def _change_view(changes, previous: int | None):
+    """(previous revision, [(what, old, new)]) and the set of changed keys, from :class:`machines.compare.Changes`."""
+    if changes is None:
+        return None, frozenset()
+    keys: set[str] = set()
+    items = []
+    for c in changes:
+        keys.add(c.key)
+        items.append((_change_label(c.key), c.old, c.new))
+    return (previous if previous is not None else "", items), frozenset(keys)
+
+
+def _change_label(key: str) -> str:
+    section, _, name = key.partition(".")
+    if section in tables.SECTION_TITLE and name and "." not in name:
+        return f"{tables.SECTION_TITLE[section]}: {tables.printed_label(name)[:1].lower()}" \
+               f"{tables.printed_label(name)[1:]}"
+    if section == "derived":
+        return f"Derived: {tables.printed_label(name).lower()}"
+    return f"{section} {tables.printed_label(name)}".strip() if name else section
+
+
+# ---------------------------------------------------------------------------------------------------- the layout
+
+
+def sheet_layout(record, page_size: str | None = None, changes=None, previous_revision: int | None = None) -> dict:
+    """The sheet of ``record`` as plain data (see the module docstring); ``changes`` (from
+    :func:`machines.compare.compare`) against ``previous_revision`` marks what changed."""
+    register()
+    size = page_size_of(page_size or (record.sheet or {}).get("page_size") or "A4")
+    page_w, page_h = size
+    width = page_w - 2 * MARGIN_X
+    frame_h = page_h - MARGIN_TOP - MARGIN_BOTTOM
     sheet = record.sheet or {}
-    status = "issued" if sheet.get("status") == "issued" else "DRAFT"
     rev = sheet.get("revision", record.revision)
-    return (f"{plain(record.tag)} · revision {rev} · {status}",
-            f"inputs fingerprint {record.inputs_fingerprint}")
+    status = tables.status_of(record)
+    change_view, changed = _change_view(changes, previous_revision)
+
+    blocks: list = []
+    blocks += _identification(record, width)
+    blocks += _inputs(record, width, changed)
+    blocks += _settings(record, width, changed)
+    blocks += _findings(record, width)
+    blocks += _notice(width)
+    blocks.append({"t": "break"})
+    blocks += _keying(record, width, changed)
+    blocks.append({"t": "break"})
+    blocks += _drawings(record, width, frame_h)
+    blocks.append({"t": "break"})
+    blocks += _tests(record, width)
+    blocks += _history(record, width, change_view)
+    blocks += _signoff(record, width)
+    blocks = [b if isinstance(b, dict) else {"t": "p", **_pd(b)} for b in blocks]
+
+    status_word = "issued" if status == "issued" else "DRAFT" + ("" if status == "draft" else f" ({status})")
+    return {
+        "format": LAYOUT_FORMAT,
+        "page": {"size": [page_w, page_h], "margin_x": MARGIN_X, "margin_top": MARGIN_TOP,
+                 "margin_bottom": MARGIN_BOTTOM},
+        "fonts": font_files(),
+        "styles": STYLES,
+        "info": {"title": f"{plain(record.tag)} protection settings, revision {rev}",
+                 "author": plain(sheet.get("prepared_by") or ""),
+                 "subject": f"Protection settings sheet for {plain(record.tag)}, revision {rev}, {status}",
+                 "keywords": keywords(record), "creator": f"relaywright {_version()}".strip(),
+                 "date": pdf_date(sheet.get("date"))},
+        "footer": _footer(record, status, status_word, size),
+        "blocks": blocks,
+    }
+
+
+# ---------------------------------------------------------------------------------------------------- rendering
+
+
+def build_sheet(record, page_size: str | None = None, changes=None, previous_revision: int | None = None) -> bytes:
+    """The PDF settings sheet for ``record`` as bytes (A4 or letter; default the record's ``sheet.page_size``)."""
+    return render_layout(sheet_layout(record, page_size, changes, previous_revision))[0]
+
+
+def build_sheet_for_signing(record, page_size: str | None = None, changes=None,
+                            previous_revision: int | None = None) -> tuple[bytes, SignatureBox | None]:
+    """The sheet's bytes and where the approver's signature goes (for a visible signature)."""
+    return render_layout(sheet_layout(record, page_size, changes, previous_revision))
+
+
+def render_layout(layout: dict) -> tuple[bytes, SignatureBox | None]:
+    """Set a layout with reportlab: the PDF bytes and the signature box (public reportlab API only)."""
+    from reportlab import rl_config
+    from reportlab.platypus import BaseDocTemplate, Frame, PageTemplate
+
+    register()
+    page = layout["page"]
+    size = tuple(page["size"])
+    mx, mt, mb = page["margin_x"], page["margin_top"], page["margin_bottom"]
+    width = size[0] - 2 * mx
+    styles = _paragraph_styles(layout["styles"])
+    spots: list = []
+    story = [_flowable(b, styles, spots) for b in layout["blocks"]]
+    info = layout["info"]
+    buf = io.BytesIO()
+    doc = BaseDocTemplate(
+        buf, pagesize=size, invariant=True, leftMargin=mx, rightMargin=mx, topMargin=mt, bottomMargin=mb,
+        title=info["title"], author=info["author"], subject=info["subject"], keywords=info["keywords"],
+        creator=info["creator"], lang="en", initialFontName=SANS, initialFontSize=8.5)
+    frame = Frame(mx, mb, width, size[1] - mt - mb, leftPadding=0, rightPadding=0, topPadding=0, bottomPadding=0,
+                  id="body")
+    footer = layout["footer"]
+    doc.addPageTemplates([PageTemplate(id="sheet", frames=[frame], pagesize=size,
+                                       onPage=lambda canv, _doc: _decorate(canv, footer))])
+    a85, rl_config.useA85 = rl_config.useA85, 0  # binary compressed streams: smaller and about 5 % faster
+    try:
+        doc.build(story, canvasmaker=_canvas_maker(info["date"]))
+    finally:
+        rl_config.useA85 = a85
+    box = None
+    if spots and spots[-1]:
+        number, (x1, y1, x2, y2) = spots[-1]
+        box = SignatureBox(number - 1, (round(x1, 2), round(y1, 2), round(x2, 2), round(y2, 2)))
+    return buf.getvalue(), box
+
+
+def _paragraph_styles(spec: dict) -> dict:
+    from reportlab.lib.colors import HexColor
+    from reportlab.lib.styles import ParagraphStyle
+
+    out = {}
+    for name, kw in spec.items():
+        kw = dict(kw)
+        if "textColor" in kw:
+            kw["textColor"] = HexColor(kw["textColor"])
+        out[name] = ParagraphStyle(name, **kw)
+    return out
+
+
+def _flowable(block, styles, spots):
+    """One layout block as a reportlab flowable."""
+    from reportlab.lib.colors import HexColor
+    from reportlab.platypus import CondPageBreak, HRFlowable, KeepTogether, PageBreak, Paragraph, Spacer, Table, \
+        TableStyle
+
+    kind = block["t"]
+    if kind == "p":
+        return Paragraph(block["text"], styles[block["style"]])
+    if kind == "table":
+        rows = [[_cell(c, styles, spots) for c in row] for row in block["rows"]]
+        cmds = []
+        for c in block["cmds"]:
+            args = [HexColor(a) if isinstance(a, str) and a.startswith("#") else a for a in c[3:]]
+            cmds.append((c[0], tuple(c[1]), tuple(c[2]), *args))
+        t = Table(rows, colWidths=block["widths"], repeatRows=block["repeat"], hAlign="LEFT")
+        t.setStyle(TableStyle(cmds))
+        return t
+    if kind == "space":
+        return Spacer(1, block["h"])
+    if kind == "cond":
+        return CondPageBreak(block["h"])
+    if kind == "break":
+        return PageBreak()
+    if kind == "rule":
+        return HRFlowable(width="100%", thickness=block["thickness"], color=HexColor(block["color"]),
+                          spaceBefore=0, spaceAfter=block["after"])
+    if kind == "keep":
+        return KeepTogether([_flowable(b, styles, spots) for b in block["items"]])
+    if kind == "figure":
+        return _figure_class()(block["w"], block["h"], block["ops"])
+    raise ValueError(f"unknown layout block {kind!r}")
+
+
+def _cell(c, styles, spots):
+    from reportlab.platypus import Paragraph
+
+    if isinstance(c, str):
+        return c
+    if c[0] == "p":
+        return Paragraph(c[1], styles[c[2]])
+    if c[0] == "stack":
+        return [_cell(x, styles, spots) for x in c[1]]
+    if c[0] == "spot":
+        return _spot_class()(c[1], c[2], spots)
+    raise ValueError(f"unknown table cell {c[0]!r}")
 
 
 @lru_cache(maxsize=1)
-def _canvas_class():
+def _figure_class():
+    from reportlab.platypus import Flowable
+
+    from reports.plots import draw_ops
+
+    class Figure(Flowable):
+        """A laid-out drawing: its operations replayed on the page."""
+
+        def __init__(self, width, height, ops):
+            super().__init__()
+            self.width, self.height, self.ops = width, height, ops
+
+        def wrap(self, availWidth, availHeight):
+            return self.width, self.height
+
+        def draw(self):
+            draw_ops(self.canv, self.ops)
+
+    return Figure
+
+
+@lru_cache(maxsize=1)
+def _spot_class():
+    from reportlab.platypus import Flowable
+
+    class SignatureSpot(Flowable):
+        """An empty box that notes where it was drawn (page number and rectangle) for the visible signature."""
+
+        def __init__(self, width, height, found):
+            super().__init__()
+            self.width, self.height, self.found = width, height, found
+
+        def wrap(self, availWidth, availHeight):
+            return self.width, self.height
+
+        def draw(self):
+            x1, y1 = self.canv.absolutePosition(0, 0)
+            x2, y2 = self.canv.absolutePosition(self.width, self.height)
+            self.found.append((self.canv.getPageNumber(), (x1, y1, x2, y2)))
+
+    return SignatureSpot
+
+
+def _canvas_maker(date: str):
+    """A canvas class dated ``date`` whose saving defines the page-count form used by every footer."""
     from reportlab.pdfgen.canvas import Canvas
 
     class SheetCanvas(Canvas):
-        """Holds the pages until the end so that every footer can say 'page x of y'."""
-
-        def __init__(self, *args, footer=None, **kwargs):
+        def __init__(self, *args, **kwargs):
             super().__init__(*args, **kwargs)
-            self._pages: list[dict] = []
-            self._footer = footer
-
-        def showPage(self):
-            self._pages.append(dict(self.__dict__))
-            self._startPage()
+            self.setDateFormatter(lambda *parts: date)
 
         def save(self):
-            total = len(self._pages)
-            for number, state in enumerate(self._pages, start=1):
-                self.__dict__.update(state)
-                self._footer(self, number, total)
-                super().showPage()
+            self.beginForm(PAGES_FORM)
+            self.setFont(SANS_BOLD, 7.5)
+            self.drawString(0, 0, str(self.getPageNumber() - 1))
+            self.endForm()
             super().save()
 
     return SheetCanvas
 
 
-def _draw_footer(canvas, number: int, total: int, *, lines, st: _Styles, width: float):
-    from reportlab.platypus import Paragraph
+def _footer(record, status: str, status_word: str, size) -> dict:
+    """The page furniture as drawing operations (the same on every page) and the page-number position."""
+    from reportlab.pdfbase.pdfmetrics import stringWidth
 
-    canvas.saveState()
-    y = _MARGIN_BOTTOM - 22
-    canvas.setStrokeColor(st.accent)
-    canvas.setLineWidth(0.6)
-    canvas.line(_MARGIN_X, y + 12, _MARGIN_X + width, y + 12)
-    canvas.setFont(SANS_BOLD, 7.5)
-    canvas.drawRightString(_MARGIN_X + width, y + 2, f"page {number} of {total}")
-    left_w = width - 90
-    first = Paragraph(markup(_fit(lines[0], left_w, 7.5)), st.footer)
-    first.wrapOn(canvas, left_w, 10)
-    first.drawOn(canvas, _MARGIN_X, y)
-    canvas.setFont(SANS, 6.5)
-    canvas.setFillColor(st.grey)
-    canvas.drawString(_MARGIN_X, y - 9, lines[1])
-    canvas.restoreState()
+    from reports.plots import text_runs
+
+    width = size[0] - 2 * MARGIN_X
+    y = MARGIN_BOTTOM - 22
+    first = _fit(f"{plain(record.tag)} · revision {record.sheet.get('revision', record.revision)} · {status_word}",
+                 width - 90, 7.5)
+    ops = [["path", ACCENT_HEX, 0.6, None, [[MARGIN_X, y + 12, MARGIN_X + width, y + 12]], None],
+           ["text", MARGIN_X, y + 2, text_runs(first, 7.5, formulas=False), GREY, 0],
+           ["text", MARGIN_X, y - 7, [[f"inputs fingerprint {record.inputs_fingerprint}", SANS, 6.5, 0.0]], GREY,
+            0]]
+    if status != "issued":
+        text = "DRAFT · not for use" if status == "draft" else f"DRAFT · {status}, not issued · not for use"
+        ops.append(["text", round(MARGIN_X + width - stringWidth(text, SANS_BOLD, 9), 2), size[1] - 26,
+                    [[text, SANS_BOLD, 9, 0.0]], ACCENT_HEX, 0])
+    return {"ops": ops, "page_number": [MARGIN_X + width - 58, y + 2, SANS_BOLD, 7.5]}
+
+
+def _decorate(canv, footer: dict) -> None:
+    """Every page's furniture: footer, draft mark, and "page x of" followed by the page-count form."""
+    from reportlab.pdfbase.pdfmetrics import stringWidth
+
+    from reports.plots import draw_ops
+
+    draw_ops(canv, footer["ops"])
+    x, y, font, size = footer["page_number"]
+    label = f"page {canv.getPageNumber()} of "
+    canv.saveState()
+    canv.setFont(font, size)
+    canv.drawString(x, y, label)
+    canv.translate(x + stringWidth(label, font, size), y)
+    canv.doForm(PAGES_FORM)
+    canv.restoreState()
 
 
 def _fit(text: str, width: float, size: float) -> str:
@@ -553,50 +822,3 @@ def _fit(text: str, width: float, size: float) -> str:
     while text and stringWidth(text + "…", SANS, size) > width:
         text = text[:-1]
     return text + "…"
-
-
-def build_sheet(record, page_size: str | None = None) -> bytes:
-    """The PDF settings sheet for ``record`` as bytes (A4 or letter; default the record's ``sheet.page_size``)."""
-    from reportlab.platypus import BaseDocTemplate, Frame, PageBreak, PageTemplate
-
-    register()
-    size = page_size_of(page_size or (record.sheet or {}).get("page_size") or "A4")
-    st = _Styles()
-    page_w, page_h = size
-    width = page_w - 2 * _MARGIN_X
-    frame_h = page_h - _MARGIN_TOP - _MARGIN_BOTTOM
-    buf = io.BytesIO()
-    sheet = record.sheet or {}
-    rev = sheet.get("revision", record.revision)
-    doc = BaseDocTemplate(
-        buf, pagesize=size, invariant=True, leftMargin=_MARGIN_X, rightMargin=_MARGIN_X, topMargin=_MARGIN_TOP,
-        bottomMargin=_MARGIN_BOTTOM, title=f"{plain(record.tag)} protection settings, revision {rev}",
-        author=plain(sheet.get("prepared_by") or ""), subject=f"Protection settings sheet for {plain(record.tag)}",
-        keywords=keywords(record), creator=f"relaywright {_version()}".strip(), lang="en",
-        initialFontName=SANS, initialFontSize=8.5)
-    frame = Frame(_MARGIN_X, _MARGIN_BOTTOM, width, frame_h, leftPadding=0, rightPadding=0, topPadding=0,
-                  bottomPadding=0, id="body")
-    doc.addPageTemplates([PageTemplate(id="sheet", frames=[frame], pagesize=size)])
-
-    story: list = []
-    story += _identification(record, st, width)
-    story += _inputs(record, st, width)
-    story += _settings(record, st, width)
-    story += _findings(record, st, width)
-    story += _notice(st, width)
-    story.append(PageBreak())
-    story += _drawings(record, st, width, frame_h)
-    story.append(PageBreak())
-    story += _tests(record, st, width)
-    story += _history(record, st, width)
-    story += _signoff(record, st, width)
-
-    footer = partial(_draw_footer, lines=_footer_lines(record), st=st, width=width)
-    from reportlab import rl_config
-
-    a85, rl_config.useA85 = rl_config.useA85, 0  # binary compressed streams: smaller and about 5 % faster
-    try:
-        doc.build(story, canvasmaker=partial(_canvas_class(), footer=footer))
-    finally:
-        rl_config.useA85 = a85
-    return buf.getvalue()

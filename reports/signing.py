@@ -102,8 +102,12 @@ def load_signer(p12_path: str | Path, password: str):
     return signer
 
 
-def sign_pdf(pdf_bytes: bytes, p12_path: str | Path, password: str) -> bytes:
-    """``pdf_bytes`` with a PAdES signature by the key in ``p12_path`` (an incremental update)."""
+def sign_pdf(pdf_bytes: bytes, p12_path: str | Path, password: str, *, box=None) -> bytes:
+    """``pdf_bytes`` with a PAdES signature by the key in ``p12_path`` (an incremental update).
+
+    ``box`` (page index from 0, and the rectangle (x1, y1, x2, y2) in points; a
+    :class:`reports.sheet.SignatureBox`) makes the signature visible there: the signer's name and the signing time.
+    """
     from pyhanko.pdf_utils.incremental_writer import IncrementalPdfFileWriter
     from pyhanko.sign import fields, signers
 
@@ -111,7 +115,23 @@ def sign_pdf(pdf_bytes: bytes, p12_path: str | Path, password: str) -> bytes:
     writer = IncrementalPdfFileWriter(io.BytesIO(pdf_bytes))
     meta = signers.PdfSignatureMetadata(field_name=SIGNATURE_FIELD, subfilter=fields.SigSeedSubFilter.PADES,
                                         md_algorithm="sha256", reason="Protection settings sheet")
+    if box is not None:
+        return _sign_visible(writer, meta, signer, box)
     out = signers.sign_pdf(writer, meta, signer=signer)
+    return out.getvalue()
+
+
+def _sign_visible(writer, meta, signer, box) -> bytes:
+    """Sign with an appearance in ``box``: "Digitally signed by <name>" and the time, plain text, no logo."""
+    from pyhanko import stamp
+    from pyhanko.sign import fields, signers
+
+    page, rect = box
+    fields.append_signature_field(writer, sig_field_spec=fields.SigFieldSpec(
+        SIGNATURE_FIELD, on_page=int(page), box=tuple(float(v) for v in rect)))
+    style = stamp.TextStampStyle(stamp_text="Digitally signed by %(signer)s\n%(ts)s", background=None,
+                                 border_width=0, timestamp_format="%Y-%m-%d %H:%M %Z")
+    out = signers.PdfSigner(meta, signer=signer, stamp_style=style).sign_pdf(writer)
     return out.getvalue()
 
 

@@ -178,7 +178,8 @@ def test_bad_input_keeps_the_previous_sheet(plant, tmp_path, capsys):
 def test_issued_revision_is_not_replaced_by_other_inputs(plant, tmp_path, capsys):
     out = tmp_path / "out"
     pump = tomllib.loads((plant / "pump.toml").read_text("utf-8"))
-    pump["sheet"]["status"] = "issued"
+    pump["sheet"].update(status="issued", checked_by="L. Brandt", checked_on="2026-11-25", approved_by="M. Sato",
+                         approved_on="2026-11-26")  # issued: checked and approved, by whom and when
     write(plant / "pump.toml", pump)
     run_batch(plant, out, workers=1)
     sheet = (out / "CW-P-201_spare_co-rev2.pdf").read_bytes()

@@ -59,8 +59,8 @@ def test_text_has_tag_ids_values_notice_and_fingerprint(sheet, text):
         assert norm(value) in text, value
     assert norm(SAFETY_NOTICE) in text
     assert FINGERPRINT in text
-    for _, c in record.all_checks():
-        assert norm(c.message) in text
+    for row in tables.finding_rows(record):
+        assert norm(row.message) in text
 
 
 def test_every_page_has_footer_with_fingerprint_and_page_numbers(sheet):
@@ -74,7 +74,7 @@ def test_every_page_has_footer_with_fingerprint_and_page_numbers(sheet):
 
 def test_order_of_sections(text):
     marks = ["PROTECTION SETTINGS SHEET", "Machine and system data, as entered", "Settings", "Findings",
-             "Safety notice", "Drawings", "Commissioning tests", "Revision history", "Sign-off"]
+             "Safety notice", "Keying list", "Drawings", "Commissioning tests", "Revision history", "Sign-off"]
     positions = [text.index(m) for m in marks]
     assert positions == sorted(positions)
 
@@ -102,8 +102,8 @@ def test_page_size(size, expected):
 def test_page_size_from_the_machine_file_and_page_count():
     reader = PdfReader(io.BytesIO(build_sheet(motor_record(page_size="letter"))))
     assert float(reader.pages[0].mediabox.width) == pytest.approx(LETTER_PT[0])
-    # regression pin of this fixture's layout: settings over two pages, drawings two to a page, then the tests
-    assert len(reader.pages) == 5
+    # regression pin of this fixture's layout: data and settings, keying list, drawings two to a page, the tests
+    assert len(reader.pages) == 7
 
 
 def test_bad_page_size():
@@ -196,10 +196,10 @@ def _drawing(kind="time-current", log=True, points=((1.0, 1.0), (10.0, 10.0)), *
 ], ids=["non-positive", "non-finite", "empty", "one-point", "log-range-from-zero", "flat", "clipped", "rx-lines",
         "long-step"])
 def test_odd_drawings_still_render(drawing):
-    from reports.plots import render
+    from reports.plots import figure
 
-    g = render(drawing, 500, 300)
-    assert g.width == 500
+    g = figure(drawing, 500, 300)
+    assert g["w"] == 500 and g["ops"]
     record = motor_record()
     record.drawings = [drawing]
     assert build_sheet(record)[:5] == b"%PDF-"
@@ -256,7 +256,7 @@ def test_example_sheets(path):
 
 
 def test_make_sheet_writes_a_safe_name_beside_the_file(tmp_path, capsys):
-    from reports.sheet_command import make_sheet
+    from wizard.sheet_command import make_sheet
 
     text = EXAMPLES[0].read_text("utf-8")
     tag = next(line for line in text.splitlines() if line.startswith("tag = "))
@@ -274,7 +274,7 @@ def test_make_sheet_writes_a_safe_name_beside_the_file(tmp_path, capsys):
 
 
 def test_make_sheet_bad_page_size_names_the_option(tmp_path):
-    from reports.sheet_command import make_sheet
+    from wizard.sheet_command import make_sheet
 
     with pytest.raises(InputError, match="--page-size: expected A4 or letter, got 'A5'"):
         make_sheet(EXAMPLES[0], page_size="A5")

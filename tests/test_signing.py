@@ -24,6 +24,12 @@ EXAMPLE = Path(__file__).resolve().parent.parent / "examples" / "chiller-compres
 PASSWORD = "correct horse"
 
 
+def issued(text: str) -> str:
+    """A machine file's text with its sheet checked, approved and issued (signing is for issuing)."""
+    return text.replace('status = "draft"', 'status = "issued"\nchecked_on = "2026-11-21"\n'
+                                            'approved_on = "2026-11-22"', 1)
+
+
 def make_p12(path: Path, common_name: str, password: str) -> Path:
     """A self-signed RSA certificate and its key as PKCS#12, made with `cryptography` (a pyHanko dependency)."""
     from cryptography import x509
@@ -150,10 +156,10 @@ def test_pdfsig_rejects_the_tampered_copy(tmp_path, signed):
 # ---------------------------------------------------------------------------------------------------- commands
 
 def test_verify_command_ok_and_machine_match(tmp_path, key, capsys, monkeypatch):
-    from reports.sheet_command import make_sheet
+    from wizard.sheet_command import make_sheet
 
     machine = tmp_path / "motor.toml"
-    machine.write_text(EXAMPLE.read_text("utf-8"), "utf-8")
+    machine.write_text(issued(EXAMPLE.read_text("utf-8")), "utf-8")
     monkeypatch.setenv("RELAYWRIGHT_SIGN_PASSWORD", PASSWORD)
     make_sheet(machine, sign=key)
     pdf = tmp_path / "CH-M-101-rev1.pdf"
@@ -166,8 +172,8 @@ def test_verify_command_ok_and_machine_match(tmp_path, key, capsys, monkeypatch)
     assert out.strip().endswith("verify: OK")
 
     # the machine file changes after the sheet was signed: the sheet no longer matches it
-    machine.write_text(EXAMPLE.read_text("utf-8").replace('rated_current = "186 A"', 'rated_current = "190 A"'),
-                       "utf-8")
+    machine.write_text(issued(EXAMPLE.read_text("utf-8")).replace('rated_current = "186 A"',
+                                                                  'rated_current = "190 A"'), "utf-8")
     assert verify_command(pdf, machine) == 1
     out = capsys.readouterr().out
     assert "DOES NOT MATCH" in out
@@ -212,10 +218,10 @@ def test_cli_verify_not_a_pdf_is_one_line_exit_2(tmp_path, monkeypatch, capsys):
 
 
 def test_sign_without_password_and_terminal_is_exit_2(tmp_path, key, monkeypatch):
-    from reports.sheet_command import make_sheet
+    from wizard.sheet_command import make_sheet
 
     machine = tmp_path / "motor.toml"
-    machine.write_text(EXAMPLE.read_text("utf-8"), "utf-8")
+    machine.write_text(issued(EXAMPLE.read_text("utf-8")), "utf-8")
     monkeypatch.delenv("RELAYWRIGHT_SIGN_PASSWORD", raising=False)
     monkeypatch.setattr(sys, "stdin", io.StringIO(""))
     with pytest.raises(InputError, match="set RELAYWRIGHT_SIGN_PASSWORD or run in a terminal"):
@@ -224,10 +230,10 @@ def test_sign_without_password_and_terminal_is_exit_2(tmp_path, key, monkeypatch
 
 
 def test_password_prompt_is_hidden(tmp_path, key, monkeypatch):
-    from reports import sheet_command
+    from wizard import sheet_command
 
     machine = tmp_path / "motor.toml"
-    machine.write_text(EXAMPLE.read_text("utf-8"), "utf-8")
+    machine.write_text(issued(EXAMPLE.read_text("utf-8")), "utf-8")
     monkeypatch.delenv("RELAYWRIGHT_SIGN_PASSWORD", raising=False)
 
     class Terminal(io.StringIO):
@@ -259,7 +265,7 @@ def test_cli_verify_tampered_exit_1(tmp_path, signed, monkeypatch, capsys):
 def test_building_a_sheet_does_not_import_pyhanko():
     # pyHanko costs about half a second to import (measured): only signing and verifying may load it
     code = ("import sys; sys.path.insert(0, 'tests'); from test_sheet_records import motor_record; "
-            "from reports.sheet import build_sheet; import reports.signing, reports.sheet_command; "
+            "from reports.sheet import build_sheet; import reports.signing, wizard.sheet_command; "
             "build_sheet(motor_record()); print('pyhanko' in sys.modules)")
     root = Path(__file__).resolve().parent.parent
     out = subprocess.run([sys.executable, "-c", code], cwd=root, capture_output=True, text=True, check=True)
@@ -267,9 +273,10 @@ def test_building_a_sheet_does_not_import_pyhanko():
 
 
 def test_a_signed_sheet_is_never_overwritten(tmp_path, key, monkeypatch):
-    from reports.sheet_command import make_sheet
+    from wizard.sheet_command import make_sheet
 
-    machine = EXAMPLE
+    machine = tmp_path / "motor.toml"
+    machine.write_text(issued(EXAMPLE.read_text("utf-8")), "utf-8")
     target = tmp_path / "sheet.pdf"
     monkeypatch.setenv("RELAYWRIGHT_SIGN_PASSWORD", PASSWORD)
     assert make_sheet(machine, output=target, sign=key) in (0, 1)

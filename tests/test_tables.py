@@ -21,11 +21,12 @@ def test_settings_blocks_follow_the_functions_in_order(record):
     blocks = tables.settings_blocks(record)
     assert [b.fid for b in blocks] == ["49", "51LR", "50P", "81U", "27"]
     first = blocks[0]
-    # the id and function name print on the first row of a function only
-    assert [r.fid for r in first.rows] == ["49", "", ""]
+    # the id and function name print on the first row of a function only; a derived value is no setting row
+    assert [r.fid for r in first.rows] == ["49", ""]
     assert first.rows[0].function == "Stator thermal overload"
     assert first.references == "IEC 60255-149"
     assert first.basis.startswith("Pickup at service factor")
+    assert [d.label for d in first.derived] == ["Heating time constant"]
 
 
 def test_setting_values_as_printed(record):
@@ -33,13 +34,43 @@ def test_setting_values_as_printed(record):
     # layout: formatting.quantity prints 4 significant figures with the practitioner's unit
     assert rows[("49", "Pickup current")].primary == "213.9 A"
     assert rows[("49", "Pickup current")].relay_side == "4.278 A"
-    # no instrument transformer applies to a time: the relay-side cell stays empty
-    assert rows[("49", "Heating time constant")].relay_side == ""
+    # no instrument transformer applies to a time: the value to set is the value itself
+    assert rows[("49", "Cooling time constant")].primary == ""
+    assert rows[("49", "Cooling time constant")].relay_side == "10800 s"
     assert rows[("27", "Pickup voltage")].primary == "3.328 kV"
-    assert rows[("51LR", "Speed switch required")].primary == "no"
-    assert rows[("81U", "Stages")].primary == "48.5 Hz / 2 s; 48 Hz / 10 s"
+    # one row per stage of a stage list
+    assert rows[("81U", "Stage 1")].relay_side == "48.5 Hz for 2 s"
+    assert rows[("81U", "Stage 2")].relay_side == "48 Hz for 10 s"
     assert rows[("49", "Cooling time constant")].source == "maker data"
     assert rows[("50P", "Pickup current")].note == "2 × locked-rotor current"
+    derived = {(d.fid, d.label): d for b in tables.settings_blocks(record) for d in b.derived}
+    assert derived[("51LR", "Speed switch required")].value == "no"
+
+
+def test_values_to_set_follow_the_step():
+    from machines.record import Setting
+
+    assert tables.value_to_set(3.7, "A", 0.01) == "3.70 A"
+    assert tables.value_to_set(1350.0, "s", 6.0) == "22.5 min"  # a 0.1 min step prints minutes
+    assert tables.value_to_set(1.45, "", 0.05) == "1.45"
+    assert tables.is_setting(Setting(1.0, "s", "derived", step=0.01))  # rounded to a relay step: keyed in
+    assert not tables.is_setting(Setting(51.5, "s", "derived"))  # an operate time it achieves
+    assert not tables.is_setting(Setting(5704.0, "ohm", "standard", keyed=False))  # equipment the study sized
+
+
+def test_keying_list_holds_every_setting_relay_side(record):
+    keyed = tables.keying_list(record)
+    assert [f.fid for f in keyed] == ["49", "51LR", "50P", "81U", "27"]
+    rows = {(f.fid, r.label): r for f in keyed for r in f.rows}
+    assert rows[("49", "Pickup current")].value == "4.278 A"  # relay side
+    assert rows[("27", "Pickup voltage")].value == "96 V"
+    assert ("49", "Heating time constant") not in rows  # derived, not keyed
+    assert {f.fid: f.state for f in keyed}["27"] == "off"
+    assert rows[("49", "Pickup current")].output == tables.OUT_TRIP
+    setup = dict(tables.keying_setup(record))
+    assert setup["Phase CT ratio"] == "250/5 A" and setup["VT ratio"] == "4200/120 V"
+    assert setup["Nominal frequency"] == "60 Hz"
+    assert setup["Phase rotation"].startswith("A-B-C")
 
 
 def test_disabled_function_says_so(record):
@@ -100,14 +131,18 @@ def test_signoff_names_from_the_machine_file(record):
 
 
 def test_inputs_as_entered(record):
-    sections = dict(tables.input_sections(record))
+    sections = {title: {label: value for label, value, _ in rows} for title, rows in tables.input_sections(record)}
     assert list(sections) == ["Machine", "Supply", "Instrument transformers", "Overrides"]
-    machine = dict(sections["Machine"])
-    assert machine["Rated voltage"] == "4.16 kV"  # the text as written, not a converted value
+    machine = sections["Machine"]
+    assert machine["Rated voltage"] == "4.16 kV"
+    assert machine["Kind of machine"] == "induction motor"  # a choice prints as words
     assert machine["Cooling time constant"] == "180 min"
     assert machine["Power factor"] == "0.89"
-    assert dict(sections["Instrument transformers"]) == {"Phase CT": "250/5 A", "VT": "4200/120 V"}
-    assert dict(sections["Overrides"]) == {"51LR.pickup_current": "450 A"}  # override keys print as written
+    assert sections["Instrument transformers"] == {"Phase CT ratio": "250/5 A", "VT ratio": "4200/120 V"}
+    assert sections["Overrides"] == {"51LR Pickup current": "450 A"}  # override keys print with their label
+    notes = {label: note for _, rows in tables.input_sections(record) for label, _, note in rows}
+    # 1500 hp in the file's unit for output, kW (1 hp = 745.7 W: 1118.5 kW)
+    assert machine["Rated output"] == "1119 kW" and notes["Rated output"] == "entered as 1500 hp"
 
 
 def test_identification(record):
@@ -136,11 +171,13 @@ def test_derived_tables(record):
 
 def test_tolerance_notes_are_keyed(record):
     rows = tables.commissioning_rows(record)
-    assert tables.tolerance_notes(record) == [("a", "±5 % or ±30 ms, whichever is greater")]
-    assert [r.tolerance_key for r in rows] == ["a", "", ""]
+    # letters by meaning, the same on every sheet: t timing, n no operation, f functional test
+    assert tables.tolerance_notes(record) == [("t", "±5 % or ±30 ms, whichever is greater")]
+    assert [r.tolerance_key for r in rows] == ["t", "", ""]
 
 
-@pytest.mark.parametrize("module", ["reports.tables", "reports.plots", "reports.fonts", "reports.sheet_command"])
+@pytest.mark.parametrize("module", ["reports.tables", "reports.plots", "reports.fonts",
+                                    "wizard.sheet_command"])
 def test_doctests(module):
     # the examples in the reports modules' docstrings (pytest collects doctests under machines/ only)
     import doctest

@@ -93,7 +93,7 @@ def sheet_cmd(
                                                  "from RELAYWRIGHT_SIGN_PASSWORD, else asked).")] = None,
 ) -> None:
     """Write the PDF settings sheet for one machine (optionally signed)."""
-    from reports.sheet_command import make_sheet
+    from wizard.sheet_command import make_sheet
 
     code = make_sheet(file, output=output, page_size=page_size, sign=sign)
     caution()

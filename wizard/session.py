@@ -226,7 +226,7 @@ def _sheet(path: Path) -> int | None:
     had been saved.
     """
     try:
-        from reports.sheet_command import make_sheet
+        from wizard.sheet_command import make_sheet
     except ImportError:
         return None
     try:
