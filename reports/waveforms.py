@@ -85,13 +85,29 @@ class Group:
 
 @dataclass
 class State:
-    """One state of a sequence: from ``start`` [s], at ``frequency`` [Hz], the phasors of each group (relay-side
-    RMS, complex), and optionally an RMS envelope per group: (times from ``start`` [s], factors)."""
+    """One state of a sequence: from ``start`` [s], at ``frequency`` [Hz] (``frequencies``: a group at another
+    one, e.g. a harmonic), the phasors of each group (relay-side RMS, complex), and optionally an RMS envelope per
+    group: (times from ``start`` [s], factors)."""
 
     start: float
     frequency: float
     phasors: dict[str, list[complex]]
     envelopes: dict[str, tuple[np.ndarray, np.ndarray]] = field(default_factory=dict)
+    frequencies: dict[str, float] = field(default_factory=dict)
+
+    def frequency_of(self, key: str) -> float:
+        return self.frequencies.get(key, self.frequency)
+
+
+def harmonic(frequency: float, system_frequency: float) -> int:
+    """The harmonic order of an injection frequency (2, 3, …), or 0 when it is a (possibly off-nominal) system
+    frequency: a harmonic is injected on the quantity under test only, a frequency change on every channel.
+
+    >>> harmonic(180.0, 60.0), harmonic(58.45, 60.0), harmonic(60.0, 60.0)
+    (3, 0, 0)
+    """
+    n = round(frequency / system_frequency)
+    return n if n >= 2 and abs(frequency - n * system_frequency) <= 1e-6 * frequency else 0
 
 
 @dataclass
@@ -361,16 +377,17 @@ def _levels(groups: list[Group], states: list[State]) -> bool:
     return False
 
 
-def _describe(groups: list[Group], phasors: dict[str, list[complex]], frequency: float) -> str:
+def _describe(groups: list[Group], phasors: dict[str, list[complex]], state: State) -> str:
     parts = []
     for g in groups:
         x = phasors.get(g.key, [0j] * len(g.names))
+        at = f" at {state.frequency_of(g.key):g} Hz"
         if all(abs(v) < 1e-12 for v in x):
             parts.append(f"{'/'.join(g.names)} 0 {g.unit}")
             continue
         parts.append(", ".join(f"{n} {abs(v):.4g} {g.unit} ∠{math.degrees(cmath.phase(v)):.1f}°"
-                               for n, v in zip(g.names, x)))
-    return "; ".join(parts) + f" at {frequency:g} Hz"
+                               for n, v in zip(g.names, x)) + at)
+    return "; ".join(parts)
 
 
 def _phasors_of(state: dict | None, groups: dict[str, Group], defaults: dict[str, list[complex]]) -> dict:
@@ -412,18 +429,23 @@ def design_test(record: dict, fid: str, tp: dict, system: System, stem: str,
     band = None if te is None else (max(0.0, float(te) - tol), float(te) + tol)
     window = PRE_TEST + (band[0] - FULL_RATE_HEAD if band else t_inj - FULL_RATE_HEAD)
     f_max = max(f_sys, f_pre, f_inj)
-    states = [State(0.0, f_pre, pre_phasors), State(PRE_TEST, f_inj, inj_phasors)]
+    if harmonic(f_inj, f_sys) and "phases" in by_field:  # the harmonic on the quantity under test only
+        main = by_field["phases"].key
+        states = [State(0.0, f_pre, pre_phasors, frequencies={main: f_inj}),
+                  State(PRE_TEST, f_sys, inj_phasors, frequencies={main: f_inj})]
+    else:
+        states = [State(0.0, f_pre, pre_phasors), State(PRE_TEST, f_inj, inj_phasors)]
     wide = _levels(groups, states)
     channels = sum(len(g.names) for g in groups)
     segments = plan_segments(total, PRE_TEST, window, f_sys, f_max, channels, wide)
-    pre_text = (f"{PRE_TEST:g} s: " + _describe(groups, pre_phasors, f_pre)
-                + ("" if pre else " (no prefault in the record: healthy voltage, no current)"))
+    pre_text = (f"{PRE_TEST:g} s: " + _describe(groups, pre_phasors, states[0])
+                + ("" if pre else " (the record gives no prefault)"))
     outcome = ("must not operate" if te is None else
                f"operates {float(te):.4g} s after the injection starts; accepted {band[0]:.4g} to {band[1]:.4g} s")
     lines = [f"Test {tp.get('id', '')} ({fid}): {tp.get('description', '')}",
              f"Quantity: {tp.get('quantity', '')} {tp.get('applied', '')} {tp.get('applied_unit', '')} relay-side",
              f"Initial state: {tp.get('initial_state') or 'not stated'}; pre-test {pre_text}",
-             f"Injection from {PRE_TEST:g} s for {t_inj:.4g} s ({why}): " + _describe(groups, inj_phasors, f_inj),
+             f"Injection from {PRE_TEST:g} s for {t_inj:.4g} s ({why}): " + _describe(groups, inj_phasors, states[1]),
              f"Expected: {outcome}"]
     return Design(stem, f"{record.get('tag', '')} revision {record.get('revision', '')}, test {tp.get('id', '')}",
                   groups, states, total, PRE_TEST, segments, wide, None if te is None else float(te), band,
@@ -536,20 +558,24 @@ def render(design: Design, station: str, device: str, start: dt.datetime, line_f
     """Sample a design into a COMTRADE recording (``line_frequency``: the system's, for the .cfg)."""
     times, rates = sample_times(design.segments)
     values = {(g.key, j): np.zeros(times.size) for g in design.groups for j in range(len(g.names))}
-    theta0 = 0.0
+    theta0 = {g.key: 0.0 for g in design.groups}  # each group's reference angle, continuous across states
     for k, s in enumerate(design.states):
         end = design.states[k + 1].start if k + 1 < len(design.states) else math.inf
         lo, hi = np.searchsorted(times, [s.start - 1e-9, end - 1e-9])
         t = times[lo:hi]
-        theta = theta0 + 2.0 * math.pi * s.frequency * (t - s.start)
         for key, phasors in s.phasors.items():
+            if not any(abs(x) > 0 for x in phasors):
+                continue
+            theta = theta0[key] + 2.0 * math.pi * s.frequency_of(key) * (t - s.start)
+            cos, sin = np.cos(theta), np.sin(theta)  # √2·|X|·cos(θ + ∠X) = √2·(Re X·cos θ − Im X·sin θ)
             env = s.envelopes.get(key)
-            scale = 1.0 if env is None else np.interp(t - s.start, env[0], env[1])
+            scale = SQRT2 if env is None else SQRT2 * np.interp(t - s.start, env[0], env[1])
             for j, x in enumerate(phasors):
                 if abs(x) > 0:
-                    values[(key, j)][lo:hi] = SQRT2 * abs(x) * scale * np.cos(theta + cmath.phase(x))
+                    values[(key, j)][lo:hi] = scale * (x.real * cos - x.imag * sin)
         if math.isfinite(end):
-            theta0 += 2.0 * math.pi * s.frequency * (end - s.start)
+            for key in theta0:
+                theta0[key] += 2.0 * math.pi * s.frequency_of(key) * (end - s.start)
     channels = [Channel(name, ph, g.circuit, g.unit, g.ratio.primary if g.ratio else 1.0,
                         g.ratio.secondary if g.ratio else 1.0, values[(g.key, j)])
                 for g in design.groups for j, (name, ph) in enumerate(zip(g.names, g.phases))]
