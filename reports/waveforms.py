@@ -13,9 +13,11 @@ with the reference angle θ continuous from one state to the next, so a change o
 motor start follows the record's RMS current against time (linear between the record's points), so its RMS
 envelope is the curve the sheet draws; the record models no DC offset, and none is added.
 
-Choices of this module (common practice for test-set files, no published source): the pre-test state holds the
-record's ``prefault``; without one, phase voltages are healthy (the nominal voltage, balanced, at the system
-frequency) and everything else is zero (a cold replica, a de-energised input). A timed test injects for the
+Choices of this module (METHODS.md §12.4; common practice for test-set files, no published source): the pre-test
+state holds the record's ``prefault``; without one, phase voltages are healthy (the nominal voltage, balanced, at
+the system frequency) and everything else is zero (a cold replica, a de-energised input). A frequency other than
+the system's applies to every channel, except a harmonic (2f, 3f, …), which is injected on the quantity under test
+only. A timed test injects for the
 expected time plus max(1 s, 20 %) (longer when the record's ``duration`` says so); a "must not operate" test for the
 record's ``duration``, or, when it gives none, for the longest operate time of the same function plus that margin.
 Sampling is :data:`MAIN_PER_CYCLE` samples a cycle; a file that would exceed :data:`MAX_FILE_BYTES` keeps that rate

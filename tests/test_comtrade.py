@@ -183,7 +183,7 @@ def test_every_file_of_the_five_examples_loads_and_plays_its_test_point(written)
             elif tp.get("duration"):
                 assert played >= tp["duration"] - 1e-3
             _check_injection(c, tp, record)
-    assert loaded >= 40
+    assert loaded >= 5 * len(written)  # the smaller files in full; the rest: .cfg, size and the long-test sample
 
 
 def test_a_long_thermal_test_uses_a_lower_rate_in_the_middle_and_stays_under_20_mb(written):
