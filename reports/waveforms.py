@@ -197,12 +197,13 @@ def _main_group(tp: dict, system: System) -> Group:
         return (_group("I", "A", ("IA", "IB", "IC"), system, ("phase_ct",)) if unit == "A" else
                 _group("V", "V", ("VA", "VB", "VC"), system, ("vt",)))
     if inp == "differential" and unit == "A":
-        return _group("I", "A", ("IA", "IB", "IC"), system, ("differential_ct", "phase_ct"), "differential CT")
+        circuit = "" if "differential_ct" in system.ratios else "phase CT (differential input)"
+        return _group("I", "A", ("IA", "IB", "IC"), system, ("differential_ct", "phase_ct"), circuit)
     if inp in ("ground", "neutral") and unit == "A":
-        keys = ("ground_ct", "neutral_ct", "phase_ct") if inp == "ground" else ("neutral_ct", "ground_ct")
-        g = _group("N", "A", ("IN",), system, keys)
-        return g if not g.circuit.startswith("phase CT") else Group(g.key, g.names, g.phases, g.unit,
-                                                                  "residual of the phase CTs", g.ratio)
+        keys = ("ground_ct", "neutral_ct") if inp == "ground" else ("neutral_ct", "ground_ct")
+        if inp == "ground" and not any(k in system.ratios for k in keys):  # residual connection of the phase CTs
+            return _group("N", "A", ("IN",), system, ("phase_ct",), "residual of the phase CTs")
+        return _group("N", "A", ("IN",), system, keys)
     if inp in ("ground", "neutral") and unit == "V":
         return _group("N", "V", ("VN",), system, ("neutral_vt", "grounding_transformer"))
     raise NoWaveform("record", f"input {inp!r} with {unit} is not a relay input this writer knows; expected "

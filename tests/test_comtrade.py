@@ -424,3 +424,24 @@ def test_start_labels_of_any_kind_give_safe_unique_names(base_record):
     stems = [d.stem for d in extras]
     assert stems == ["CH-M-101-rev1-start-rated", "CH-M-101-rev1-start-80_weak_bus",
                      "CH-M-101-rev1-start-rated-2", "CH-M-101-rev1-stall"]
+
+
+def test_a_differential_input_is_fed_through_the_differential_cts(tmp_path):
+    case, warnings = load_case(EXAMPLES / "gas-engine-generator.toml")
+    record = run_study(case, warnings).to_json()
+    tp = tp_of(quantity="differential current", applied=0.36, input="differential", phases=balanced(0.36),
+               expected_time=0.03, tolerance_time=0.03)
+    c, _ = play(record, tp, tmp_path)
+    assert [(ch.name, ch.ccbm, ch.primary, ch.secondary) for ch in c.cfg.analog_channels] == [
+        (n, "differential CT", 300.0, 5.0) for n in ("IA", "IB", "IC")]  # differential_ct = "300/5 A"
+    _check_injection(c, tp, record)
+
+
+def test_a_ground_input_without_a_core_balance_ct_is_the_residual_of_the_phase_cts(base_record, tmp_path):
+    record = copy.deepcopy(base_record)
+    del record["inputs"]["instruments"]["ground_ct"]
+    tp = tp_of(quantity="earth-fault current", applied=2.0, input="ground", phases=single(2.0))
+    c, _ = play(record, tp, tmp_path)
+    ch = c.cfg.analog_channels[0]
+    assert (ch.name, ch.ccbm, ch.primary, ch.secondary) == ("IN", "residual of the phase CTs", 300.0, 5.0)
+    _check_injection(c, tp, record)
