@@ -100,6 +100,21 @@ def sheet_cmd(
     raise typer.Exit(code)
 
 
+@app.command("comtrade")
+def comtrade_cmd(
+    file: Annotated[Path, typer.Argument(help="Machine file (.toml).")],
+    output: Annotated[Optional[Path], typer.Option("-o", "--output", help="Folder for the files (default: "
+                                                   "<tag>-rev<N>-tests beside the machine file).")] = None,
+    force: Annotated[bool, typer.Option("--force", help="Replace files already in the folder.")] = False,
+) -> None:
+    """Test-set files: a COMTRADE waveform per test point (and the motor's starts and a stall) and test-plan.csv."""
+    from wizard.comtrade_command import make_comtrade
+
+    code = make_comtrade(file, output=output, force=force, device=f"relaywright {__version__}")
+    caution()
+    raise typer.Exit(code)
+
+
 @app.command("verify")
 def verify_cmd(
     pdf: Annotated[Path, typer.Argument(help="Signed settings sheet (.pdf).")],
