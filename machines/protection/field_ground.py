@@ -55,8 +55,8 @@ def settings(ctx: StudyContext) -> FunctionSettings | None:
 
     tests = [tp(0.8 * trip, tdelay, "80 % of the trip resistance between the field and earth: trip"),
              tp(0.8 * alarm if 0.8 * alarm > trip else 0.5 * (alarm + trip), adelay,
-                "between the trip and alarm resistances: alarm only"),
-             tp(1.25 * alarm, None, "125 % of the alarm resistance: must not operate")]
+                "between the two settings: alarm only"),
+             tp(1.25 * alarm, None, "125 % of the alarm resistance: neither alarm nor trip")]
     basis_text = (f"Insulation of the field circuit to earth, measured by injection: alarm below "
                   f"{alarm / 1e3:.4g} kΩ after {adelay:g} s, trip below {trip / 1e3:.4g} kΩ after {tdelay:g} s. A first "
                   f"field earth fault does no harm; a second shorts part of the winding and unbalances the rotor.")
