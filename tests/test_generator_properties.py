@@ -3,6 +3,7 @@
 from __future__ import annotations
 
 import math
+import re
 
 from hypothesis import given, settings, strategies as st
 
@@ -147,6 +148,23 @@ def test_study_of_any_plausible_generator(data):
             for x, y in s.points:
                 assert math.isfinite(x) and math.isfinite(y)
                 assert (x > 0 or not d.log_x) and (y > 0 or not d.log_y)
+    # every generator has loss-of-potential supervision and inadvertent-energisation protection (IEEE C37.102,
+    # from memory); 87N wherever a neutral CT sees a measurable earth-fault current (METHODS.md §9.9)
+    assert record.function("60") is not None and record.function("50/27") is not None
+    case = case_from_dict(data)[0]
+    if case.instruments.neutral_ct is not None and case.grounding.method == "low-resistance":
+        assert record.function("87N") is not None or any("87N is not applied" in c.message for c in record.checks)
+    # no derived value among the settings: what is not keyed into the relay is marked so
+    for fs in record.functions:
+        for key, s in fs.settings.items():
+            assert s.keyed or s.source in ("derived", "standard", "entered"), (fs.id, key)
+            assert s.source != "derived" or not s.keyed, (fs.id, key)
+    # no infinity or not-a-number in anything the sheet prints
+    words = [c.message for _, c in record.all_checks()] + [f.basis for f in record.functions]
+    words += [s.note for f in record.functions for s in f.settings.values()]
+    words += [t.description for f in record.functions for t in f.test_points]
+    for text in words:
+        assert not re.search(r"\b(inf|nan)\b", text, re.IGNORECASE), text
     # 81U stays below nominal, 81O above
     f0 = case_from_dict(data)[0].machine.frequency
     assert all(st_["frequency"] < f0 for st_ in record.function("81U").settings["stages"].value)

@@ -240,8 +240,9 @@ def prepare(case: MachineCase) -> StudyContext:
                                              note="on the generator's rating")
     if x_e is not None:
         d["system_reactance"] = Setting(x_e, "pu", "derived", label="System reactance seen from the terminals",
-                                        note="S_machine / fault level (the system alone, with any step-up "
-                                             "transformer), on the generator's rating")
+                                        note="S_machine / fault level (the system alone"
+                                             + (", through the step-up transformer" if basis.unit_connected else "")
+                                             + "), on the generator's rating")
     if basis.earth_fault_current is not None:
         d["terminal_earth_fault_current"] = Setting(basis.earth_fault_current, "A", "derived",
                                                     label="Earth-fault current, terminal fault",

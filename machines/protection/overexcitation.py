@@ -48,10 +48,9 @@ def settings(ctx: StudyContext) -> FunctionSettings:
     else:
         lv = t_limit = None
         limit, governs = g_limit, "generator"
-        checks.append(Check("ok", "No unit step-up transformer " + ("(bus-connected)" if basis.connection == "bus"
-                                                                   else "is known") +
-                                  f": the generator's own limit {g_limit:.4g} pu governs; a transformer elsewhere on "
-                                  f"the bus has its own V/Hz protection."))
+        checks.append(Check("ok", ("Bus-connected" if basis.connection == "bus" else "No transformer of this unit "
+                                   "is known") + f": the generator's own limit {g_limit:.4g} pu governs; a "
+                                  f"transformer elsewhere on the system has its own V/Hz protection."))
     # rounded down: every stage stays at or below its target above the limit
     alarm, a_src = ctx.choose(FID, "alarm_pickup", limit, "per_unit", "", "standard", rounding="down")
     trip, t_src = ctx.choose(FID, "trip_pickup", limit + TRIP1_STEP, "per_unit", "", "common-practice",
@@ -118,10 +117,10 @@ def settings(ctx: StudyContext) -> FunctionSettings:
     tests.append(timed_test_point("phase-to-phase voltage at rated frequency", 0.98 * alarm * v_sec, unit, None,
                                   frequency=f0, description="98 % of the alarm pickup: must not operate",
                                   duration=hold_time(adelay)))
-    lv_text = (f"the transformer's {t_limit:.4g} pu (its {s.transformer_vhz_limit:.4g} pu moved from "
-               f"{lv / 1e3:.4g} kV)" if t_limit is not None else "no step-up transformer")
-    basis_text = (f"Volts per hertz on the generator base; the lower of the generator's {g_limit:.4g} pu and "
-                  f"{lv_text} governs. Alarm at the limit after {adelay:g} s; trip {trip:.4g} pu after {delay:g} s "
+    limits = (f"the lower of the generator's {g_limit:.4g} pu and the transformer's {t_limit:.4g} pu (its "
+              f"{s.transformer_vhz_limit:.4g} pu moved from {lv / 1e3:.4g} kV) governs" if t_limit is not None
+              else f"the generator's own {g_limit:.4g} pu governs")
+    basis_text = (f"Volts per hertz on the generator base; {limits}. Alarm at the limit after {adelay:g} s; trip {trip:.4g} pu after {delay:g} s "
                   f"and {trip2:.4g} pu after {delay2:g} s (steps and delays: IEEE C37.102 example, from memory), "
                   f"below typical short-time overexcitation curves; replace by an inverse curve fitted below the "
                   f"makers' curves where they are known.")

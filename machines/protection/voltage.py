@@ -94,8 +94,9 @@ def overvoltage(ctx: StudyContext) -> FunctionSettings:
               "high_time_delay": Setting(hdelay, "s", hd_src, label="High-stage delay")}
     stages = [(pickup, delay), (high, hdelay)]
     tests = _tests(vt, stages, 0, False, "59") + _tests(vt, stages, 1, False, "59 high stage", hold=False)
+    unit = ctx.extras["generator"].unit_connected
     return FunctionSettings("59", "Overvoltage", values,
                             f"Overvoltage at {pickup / vr:.0%} for {delay:g} s and {high / vr:.0%} after {hdelay:g} s: "
-                            f"protects the insulation and the step-up transformer against regulator failure and "
-                            f"load rejection; the maker's data govern.", references=["IEEE C37.102"], checks=checks,
-                            test_points=tests)
+                            f"protects the insulation{' and the step-up transformer' if unit else ''} against "
+                            f"regulator failure and load rejection; the maker's data govern.",
+                            references=["IEEE C37.102"], checks=checks, test_points=tests)
