@@ -118,7 +118,9 @@ def _prune(stages: list[dict], under: bool) -> list[dict]:
 def _overrides(ctx: StudyContext, fid: str, stages: list[dict], source: str) -> tuple[list[dict], str]:
     out, src = [], source
     for i, st in enumerate(stages, start=1):
-        f, fs = ctx.choose(fid, f"stage{i}_frequency", st["frequency"], "frequency", "Hz", source)
+        # rounded away from nominal and delays up: both keep the ride-through and load-shedding margins
+        f, fs = ctx.choose(fid, f"stage{i}_frequency", st["frequency"], "frequency", "Hz", source,
+                           rounding="down" if fid == "81U" else "up")
         t, ts = ctx.choose(fid, f"stage{i}_time_delay", st["time_delay"], "time", "s", source, rounding="up")
         if "override" in (fs, ts):
             src = "override"

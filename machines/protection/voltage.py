@@ -47,7 +47,9 @@ def undervoltage(ctx: StudyContext) -> FunctionSettings:
     """27: one definite-time stage."""
     m, vt = ctx.case.machine, ctx.case.instruments.vt
     vr = m.rated_voltage
-    pickup, p_src = ctx.choose("27", "pickup_voltage", UNDER_PICKUP * vr, "voltage", "V", "common-practice")
+    # rounded down: the pickup keeps its distance below the normal operating band
+    pickup, p_src = ctx.choose("27", "pickup_voltage", UNDER_PICKUP * vr, "voltage", "V", "common-practice",
+                               rounding="down")
     delay, d_src = ctx.choose("27", "time_delay", UNDER_DELAY, "time", "s", "common-practice")
     ctx.extras["undervoltage_delay"] = delay  # the 50/27 arming delay must be longer
     checks = []
@@ -72,9 +74,12 @@ def overvoltage(ctx: StudyContext) -> FunctionSettings:
     """59: a time-delayed stage and a fast high stage."""
     m, vt = ctx.case.machine, ctx.case.instruments.vt
     vr = m.rated_voltage
-    pickup, p_src = ctx.choose("59", "pickup_voltage", OVER_PICKUP * vr, "voltage", "V", "common-practice")
+    # rounded up: the pickups keep their distance above the normal operating band
+    pickup, p_src = ctx.choose("59", "pickup_voltage", OVER_PICKUP * vr, "voltage", "V", "common-practice",
+                               rounding="up")
     delay, d_src = ctx.choose("59", "time_delay", OVER_DELAY, "time", "s", "common-practice")
-    high, h_src = ctx.choose("59", "high_pickup_voltage", OVER_HIGH * vr, "voltage", "V", "common-practice")
+    high, h_src = ctx.choose("59", "high_pickup_voltage", OVER_HIGH * vr, "voltage", "V", "common-practice",
+                             rounding="up")
     hdelay, hd_src = ctx.choose("59", "high_time_delay", OVER_HIGH_DELAY, "time", "s", "common-practice")
     checks = []
     if pickup > (1.0 + NORMAL_BAND) * vr:
