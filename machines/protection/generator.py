@@ -406,9 +406,9 @@ def _rx_drawing(ctx: StudyContext, fs: FunctionSettings, by_id: dict[str, Functi
     if basis.x_external is not None:
         c, r = cap.steady_state_stability_circle(m.xd, basis.x_external)
         rotor = ("round rotor" if m.rotor.startswith("cylindrical") else
-                 "salient pole: drawn with X_d, conservative, as reluctance torque moves the real limit further out")
-        series.append(Series(f"approximate steady-state stability limit ({rotor}; no AVR, X_e from the fault "
-                             f"level)", [(x * zb, y * zb) for x, y in _circle_points(c, r)], "dotted"))
+                 "salient pole: drawn with X_d, on the safe side")
+        series.append(Series(f"steady-state stability limit, approximate ({rotor}; no AVR)",
+                             [(x * zb, y * zb) for x, y in _circle_points(c, r)], "dotted"))
     f21 = by_id.get("21")
     if f21 is not None:
         c, r = gz.mho_circle(ohm("reach", f21), f21.settings["characteristic_angle"].value)
@@ -421,9 +421,10 @@ def _rx_drawing(ctx: StudyContext, fs: FunctionSettings, by_id: dict[str, Functi
                               (0.0, (fwd - rev) / 2.0), (fwd + rev) / 2.0, "dashed"))
         series.append(Series(f"78 right blinder, +{d:.4g} Ω", [(d, -rev), (d, fwd)], "dotted"))
         series.append(Series(f"78 left blinder, −{d:.4g} Ω", [(-d, -rev), (-d, fwd)], "dotted"))
-    low = min(c.center[1] - c.radius for c in circles)
-    high = max([c.center[1] + c.radius for c in circles] + [rated[1] * zb])
-    wide = max([abs(c.center[0]) + c.radius for c in circles] + [abs(low) * 0.6])
+    pts = [p for s_ in series for p in s_.points]
+    low = min([c.center[1] - c.radius for c in circles] + [y for _, y in pts])
+    high = max([c.center[1] + c.radius for c in circles] + [y for _, y in pts])
+    wide = max([abs(c.center[0]) + c.radius for c in circles] + [abs(x) for x, _ in pts] + [abs(low) * 0.6])
     lim = max(abs(low), high, wide) * 1.2
     return Drawing(kind="r-x", title="Impedance elements in the R-X plane: 40 loss of field"
                    + (", 21" if f21 is not None else "") + (", 78" if f78 is not None else ""),
@@ -454,12 +455,21 @@ def _frequency_drawing(ctx: StudyContext, under: FunctionSettings | None, over: 
         if pts:
             series.append(Series("maker's band limits (accumulated time)" + (" below" if low_side else " above")
                                  + " nominal", pts, "step"))
+    rt = ctx.case.supply.ride_through
+    if rt:  # each band as a vertical bar at its required time: stages must lie to the right of the bars they cross
+        pts = []
+        for b in sorted(rt, key=lambda b: b.low):
+            x = min(max(b.minimum_time, tmin), tmax)
+            pts += [(x, b.low), (x, b.high)]
+        series.append(Series("system ride-through requirement (time the unit must stay connected)", pts, "step"))
     ls = ctx.case.supply.load_shedding_stages
     if ls:
         series.append(Series("system load-shedding stages (0 s drawn at 0.05 s)",
                              [(max(s.time_delay, tmin), s.frequency) for s in ls], "points"))
     ys = [y for s in series for _, y in s.points] + [m.frequency]
-    return Drawing(kind="frequency", title="81U/81O stages against the maker's bands and the load shedding",
+    return Drawing(kind="frequency", title="81U/81O stages against the maker's bands, the load shedding and the "
+                                           "ride-through requirement" if rt else
+                   "81U/81O stages against the maker's bands and the load shedding",
                    x_label="time [s]", y_label="frequency [Hz]", log_x=True, series=series,
                    x_range=(tmin, tmax), y_range=(min(ys) - 0.5, max(ys) + 0.5))
 

@@ -85,7 +85,10 @@ def settings(ctx: StudyContext) -> FunctionSettings:
                                                "CTs are advisable."))
         else:
             checks.append(Check("fail", text + ": below what the CT/VT and relay measure reliably; use dedicated "
-                                               "CTs or a lower CT ratio."))
+                                               "CTs or a lower CT ratio"
+                                + ("; the maker's motoring power (machine.motoring_power), usually above the low "
+                                   "end of the range, may allow a higher pickup." if m.motoring_power is None
+                                   else ".")))
     q_rated = m.rated_apparent_power * math.sqrt(max(0.0, 1.0 - m.power_factor ** 2))
     false_p = q_rated * math.sin(math.radians(ANGLE_ERROR))
     if pickup <= false_p:

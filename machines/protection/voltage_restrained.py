@@ -18,7 +18,7 @@ from machines.standards.inverse_time import CURVES, curve_constants, inverse_ope
 
 FID = "51V"
 PICKUP = 1.5  #: [pu of rated current] at rated voltage (METHODS.md §9.4, IEEE C37.102; value from memory)
-FLOOR = 0.25  #: restraint floor, fraction of the pickup (METHODS.md §9.4, Gers & Holmes §5.8)
+FLOOR = 0.25  #: restraint floor, fraction of the pickup (METHODS.md §9.4; Gers & Holmes, section from memory)
 TARGET_TIME = 1.0  #: [s] at the transient terminal-fault current, fully restrained (common practice)
 MARGIN = 2.0  #: sustained fault current ≥ 2 × restrained pickup (METHODS.md §9.4 [derived])
 CHECK_VOLTAGE = 0.0  #: [pu] terminal voltage of the fault checked: a terminal fault (restraint at its floor)

@@ -258,7 +258,8 @@ def restrained_pickup(pickup_at_rated_voltage: float, voltage: float, floor: flo
 
     References
     ----------
-    Gers & Holmes, Protection of Electricity Distribution Networks, §5.8 (linear restraint to 25 %); METHODS.md §9.4.
+    Gers & Holmes, Protection of Electricity Distribution Networks (linear restraint to 25 %; section number from
+    memory); METHODS.md §9.4.
 
     Examples
     --------

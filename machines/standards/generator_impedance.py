@@ -67,8 +67,8 @@ def electrical_centre(xd_transient: float, x_external: float) -> float:
 
     References
     ----------
-    Two-source equivalent of a power swing (e.g. P. Kundur, Power System Stability and Control, 1994, §13.6;
-    IEEE C37.102, out-of-step protection; derived). METHODS.md §9.7.
+    Two-source equivalent of a power swing (e.g. P. Kundur, Power System Stability and Control, 1994, chapter on
+    out-of-step relaying, section from memory; IEEE C37.102, out-of-step protection; derived). METHODS.md §9.7.
 
     Examples
     --------

@@ -89,7 +89,8 @@ def c50_13_direct_continuous(rated_apparent_power: float) -> float:
 
     References
     ----------
-    IEEE C50.13-2005, permissible unbalanced currents (value from memory, lower confidence); METHODS.md §6.1, 6.4.
+    IEEE C50.13-2005 (a superseded edition; value from memory, lower confidence), permissible unbalanced currents;
+    METHODS.md §6.1, 6.4.
 
     Examples
     --------
@@ -183,7 +184,7 @@ def table_capability(practice: str, rotor: str, rated_apparent_power: float) -> 
         if practice == "IEEE":
             return UnbalanceCapability(c50_13_direct_continuous(rated_apparent_power),
                                        c50_13_direct_k(rated_apparent_power), _C50_13 + "; continuous I2 by "
-                                       "C50.13-2005", "cylindrical rotor, directly cooled")
+                                       "C50.13-2005, a superseded edition", "cylindrical rotor, directly cooled")
         if practice == "IEC":
             return UnbalanceCapability(iec_direct_continuous(rated_apparent_power),
                                        iec_direct_k(rated_apparent_power), _IEC, "cylindrical rotor, directly "
