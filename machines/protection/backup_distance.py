@@ -53,6 +53,19 @@ def load_angle(power_factor: float) -> float:
     return math.degrees(math.acos(power_factor))
 
 
+def proposed_reach(basis, power_factor: float) -> tuple[float, str]:
+    """The mho diameter the rule proposes [ohm primary] and how it was found."""
+    zb = basis.base_impedance
+    if basis.unit_connected and basis.x_transformer is not None:
+        return (TRANSFORMER_REACH * basis.x_transformer * zb / math.cos(math.radians(90 - ANGLE)),
+                f"{TRANSFORMER_REACH:.0%} of the step-up transformer's {basis.x_transformer:.3g} pu")
+    theta = load_angle(power_factor)
+    return (LOAD_TARGET * LOAD_VOLTAGE ** 2 * zb / math.cos(math.radians(ANGLE - theta)),
+            f"the largest the load allows ({LOAD_TARGET:.0%} of the load impedance along the load angle)"
+            + ("; the step-up transformer's impedance is not given (supply.transformer_impedance)"
+               if basis.unit_connected else "; check it against the feeders it backs up"))
+
+
 def settings(ctx: StudyContext) -> FunctionSettings:
     """21: reach, characteristic angle and delay; enabled where 51V falls short."""
     basis, m = ctx.extras["generator"], ctx.case.machine
@@ -60,15 +73,8 @@ def settings(ctx: StudyContext) -> FunctionSettings:
     checks: list[Check] = []
     theta = load_angle(m.power_factor)
     z_load = LOAD_VOLTAGE ** 2 * zb
-    by_load = LOAD_TARGET * z_load / math.cos(math.radians(ANGLE - theta))
-    if basis.unit_connected and basis.x_transformer is not None:
-        target = TRANSFORMER_REACH * basis.x_transformer * zb / math.cos(math.radians(90 - ANGLE))
-        how = f"{TRANSFORMER_REACH:.0%} of the step-up transformer's {basis.x_transformer:.3g} pu"
-    else:
-        target = by_load
-        how = (f"the largest the load allows ({LOAD_TARGET:.0%} of the load impedance along the load angle)"
-               + ("; the step-up transformer's impedance is not given (supply.transformer_impedance)"
-                  if basis.unit_connected else "; check it against the feeders it backs up"))
+    target, how = proposed_reach(basis, m.power_factor)
+    if not (basis.unit_connected and basis.x_transformer is not None):
         if basis.unit_connected:
             checks.append(Check("warn", "The step-up transformer's impedance is not given "
                                         "(supply.transformer_impedance): the reach is set by the load, not to the "

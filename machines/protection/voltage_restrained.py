@@ -10,6 +10,7 @@ shows a setting that fails it).
 from __future__ import annotations
 
 from machines.errors import InputError
+from machines.protection.backup_distance import proposed_reach
 from machines.protection.base import StudyContext, balanced, current_setting, timed_test_point
 from machines.protection.generator_injection import hold_time
 from machines.record import Check, FunctionSettings, Setting
@@ -104,13 +105,14 @@ def settings(ctx: StudyContext) -> FunctionSettings:
                                            "voltage-controlled mode, or show that the exciter forces the field."))
         inadequate.append("the restrained pickup is above the sustained fault current")
     if static:
+        reach, how = proposed_reach(basis, case.machine.power_factor)
         checks.append(Check("warn", "Static exciter fed from the generator terminals: during a close-in fault the "
                                     "terminal voltage, and with it the field supply, collapses, so the fault current "
                                     "decays from E/X'd well below E/X_d and the 51V may reset before it times out. "
                                     "Use voltage-controlled overcurrent (pickup below rated current, enabled only "
-                                    "below about 0.8 pu voltage) or the 21 backup set in this study, unless the "
-                                    "maker shows the exciter sustains the fault current (field forcing from a "
-                                    "separate or compounded supply)."))
+                                    f"below about 0.8 pu voltage) or the 21 backup set in this study (mho reach "
+                                    f"{reach:.4g} Ω primary, {how}), unless the maker shows the exciter sustains "
+                                    f"the fault current (field forcing from a separate or compounded supply)."))
         inadequate.append("the static exciter does not sustain the fault current")
     elif basis.excitation is None:
         checks.append(Check("warn", "The exciter is not known (machine.excitation): with a static exciter fed from "
