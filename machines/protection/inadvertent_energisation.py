@@ -18,6 +18,7 @@ from __future__ import annotations
 import math
 
 from machines.protection.base import StudyContext, balanced, current_setting, timed_test_point, voltage_setting
+from machines.protection.generator_findings import pickup_share
 from machines.protection.generator_injection import hold_time, zeros
 from machines.record import Check, FunctionSettings, Setting
 from machines.standards.generator_impedance import energising_current
@@ -70,16 +71,8 @@ def settings(ctx: StudyContext) -> FunctionSettings:
                                "common-practice", rounding="up")
     dis_t, dt_src = ctx.choose(FID, "disarming_time_delay", DISARMING_DELAY, "time", "s", "common-practice")
     if i_en is not None:
-        share = pickup / i_en
-        if share <= PICKUP_SHARE * (1 + 1e-9):
-            checks.append(Check("ok", f"Pickup {pickup:.4g} A is {share:.0%} of the energising current "
-                                      f"{i_en:.4g} A."))
-        elif share < 1.0:
-            checks.append(Check("warn", f"Pickup {pickup:.4g} A is {share:.0%} of the energising current "
-                                        f"{i_en:.4g} A: little margin."))
-        else:
-            checks.append(Check("fail", f"Pickup {pickup:.4g} A is not below the energising current {i_en:.4g} A: "
-                                        f"an inadvertent energisation is not detected."))
+        checks.append(pickup_share(f"Pickup {pickup:.4g} A", pickup / i_en, f"the energising current {i_en:.4g} A",
+                                   PICKUP_SHARE, "an inadvertent energisation is not detected"))
     if arm_t > uv_delay:
         checks.append(Check("ok", f"Arming delay {arm_t:g} s is longer than the undervoltage element's {uv_delay:g} s: "
                                   f"a voltage dip on line that protection clears does not arm it."))

@@ -16,6 +16,7 @@ import math
 
 from machines.model import Ratio
 from machines.protection.base import StudyContext, timed_test_point
+from machines.protection.generator_findings import pickup_share
 from machines.protection.generator_injection import hold_time, power_phasors
 from machines.protection.generator_terms import MOTORING_HARM, prime_mover, shutdown_signal, with_article
 from machines.record import Check, FunctionSettings, Setting
@@ -50,19 +51,13 @@ def settings(ctx: StudyContext) -> FunctionSettings:
                                "common-practice", via=watts, rounding="down")
     delay, d_src = ctx.choose(FID, "time_delay", UNSUPERVISED_DELAY, "time", "s", "common-practice")
     sdelay, sd_src = ctx.choose(FID, "supervised_time_delay", SUPERVISED_DELAY, "time", "s", "common-practice")
-    share = pickup / motoring
     if pickup <= 0:
         checks.append(Check("fail", "The reverse-power pickup must be a positive power."))
-    elif share <= PICKUP_FRACTION * (1 + 1e-9):
-        checks.append(Check("ok", f"Pickup {pickup / 1e3:.4g} kW is {share:.0%} of the motoring power "
-                                  f"{motoring / 1e3:.4g} kW ({mot_note}): motoring is seen with margin for "
-                                  f"measuring error."))
-    elif share < 1.0:
-        checks.append(Check("warn", f"Pickup {pickup / 1e3:.4g} kW is {share:.0%} of the motoring power "
-                                    f"{motoring / 1e3:.4g} kW: little margin for measuring error (half is usual)."))
     else:
-        checks.append(Check("fail", f"Pickup {pickup / 1e3:.4g} kW is not below the motoring power "
-                                    f"{motoring / 1e3:.4g} kW: motoring would not be detected."))
+        checks.append(pickup_share(f"Pickup {pickup / 1e3:.4g} kW", pickup / motoring,
+                                   f"the motoring power {motoring / 1e3:.4g} kW", PICKUP_FRACTION,
+                                   "motoring would not be detected",
+                                   f" ({mot_note}): motoring is seen with margin for measuring error"))
     if m.motoring_power is None:
         checks.append(Check("warn", f"No maker's motoring power (machine.motoring_power): the pickup rests on the "
                                     f"lowest motoring power of {with_article(mover)}; measure it at commissioning (trip the "
