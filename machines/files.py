@@ -194,6 +194,9 @@ def case_from_dict(data: Any) -> tuple[MachineCase, list[str]]:
         if name in data and not isinstance(data[name], dict):
             raise InputError(name, f"expected a table ([{name}]), got {one_line(data[name])}")
     for name in ("sheet", "machine", "supply", "grounding", "instruments"):
+        if name == "supply" and isinstance(data.get("machine"), dict) \
+                and data["machine"].get("kind") == "synchronous-generator":
+            continue  # a generator without [supply] is studied alone
         if name not in data:
             raise InputError(name, f"required table [{name}] is missing")
     mtable = data["machine"]
@@ -222,15 +225,17 @@ def case_from_dict(data: Any) -> tuple[MachineCase, list[str]]:
         raise InputError("overrides", f"expected a table of \"id.setting\" = value, got {one_line(overrides)}")
     over = []
     for k, v in overrides.items():
-        if not re.fullmatch(r"[0-9A-Za-z]{1,6}\.[a-z0-9_]{1,40}", k):
+        if not re.fullmatch(r"[0-9A-Za-z]{1,6}(?:/[0-9A-Za-z]{1,6})?\.[a-z0-9_]{1,40}", k):
             raise InputError(f"overrides.{k}", "expected a key like \"49.pickup_current\" (function id, a dot, "
                                                "the setting name)")
         if not isinstance(v, (str, int, float, bool)):
             raise InputError(f"overrides.{k}", f"expected a value such as \"180 A\", got {one_line(v)}")
         over.append((k, v if isinstance(v, str) else str(v).lower() if isinstance(v, bool) else str(v)))
+    supply_given = "supply" in data
+    supply_table = data["supply"] if supply_given else {"nominal_voltage": f"{machine.rated_voltage!r} V"}
     case = MachineCase(
         sheet=sheet, study=StudyOptions(**study_kw), machine=machine, load=load,
-        supply=Supply(**_section(Supply, data["supply"], "supply")),
+        supply=Supply(**_section(Supply, supply_table, "supply")), supply_given=supply_given,
         grounding=Grounding(**_section(Grounding, data["grounding"], "grounding")),
         instruments=Instruments(**_section(Instruments, data["instruments"], "instruments")),
         relay=RelaySteps(**_section(RelaySteps, data.get("relay", {}), "relay")),

@@ -215,6 +215,38 @@ class FrequencyStage:
     )
 
 
+@dataclass(frozen=True)
+class CapabilityPoint:
+    """A point of the underexcited (leading) side of a P-Q diagram: at ``active_power`` the machine absorbs at most
+    ``reactive_absorbed`` [both pu of the rated apparent power, at rated voltage]."""
+
+    active_power: float = spec(
+        "per_unit", "pu", required=True, lo=0.0, hi=1.2, allow_zero=True, value_default=0.0,
+        help="active power, pu of the rated apparent power"
+    )
+    reactive_absorbed: float = spec(
+        "per_unit", "pu", required=True, lo=0.0, hi=1.2, allow_zero=True, value_default=0.0,
+        help="reactive power absorbed (underexcited, leading) at that active power, pu of the rated apparent power"
+    )
+
+
+@dataclass(frozen=True)
+class RideThroughBand:
+    """A band of the system's frequency ride-through requirement: with the frequency from ``low`` to ``high`` [Hz]
+    the unit must stay connected for at least ``minimum_time`` [s]."""
+
+    low: float = spec(
+        "frequency", "Hz", required=True, lo=30.0, hi=70.0, value_default=0.0, help="lower edge of the band"
+    )
+    high: float = spec(
+        "frequency", "Hz", required=True, lo=30.0, hi=70.0, value_default=0.0, help="upper edge of the band"
+    )
+    minimum_time: float = spec(
+        "time", "s", required=True, lo=0.0, hi=1e8, allow_zero=True, value_default=0.0,
+        help="time the unit must stay connected with the frequency in this band (1e8 s or more: continuously)"
+    )
+
+
 # ---------------------------------------------------------------------------------------------------- machines
 
 
@@ -416,6 +448,18 @@ class SynchronousGenerator:
     frequency_limits: tuple[FrequencyBand, ...] = spec(
         "table", item=FrequencyBand, help="maker's off-frequency bands: low, high, allowed time"
     )
+    excitation: str | None = spec(
+        "choice", choices=("static", "brushless", "rotating-dc"),
+        help="exciter: static (fed from the terminals through slip rings), brushless, or rotating DC"
+    )
+    capability: tuple[CapabilityPoint, ...] = spec(
+        "table", item=CapabilityPoint, help="maker's capability curve, underexcited side: active power, reactive "
+        "power absorbed"
+    )
+    uel: tuple[CapabilityPoint, ...] = spec(
+        "table", item=CapabilityPoint, help="under-excitation limiter of the voltage regulator: active power, "
+        "reactive power absorbed"
+    )
 
 
 # ---------------------------------------------------------------------------------------------------- system
@@ -530,6 +574,19 @@ class Supply:
         value_default=1.05,
         help="step-up transformer's continuous V/Hz capability on its LV base",
     )
+    connection: str | None = spec(
+        "choice", choices=("unit-transformer", "bus"),
+        help="generators: through its own step-up (unit) transformer, or directly to a bus shared with others"
+    )
+    transformer_impedance: float | None = spec(
+        "per_unit", "pu", lo=0.02, hi=0.3, help="step-up transformer's impedance on its own rating (e.g. 8 %)"
+    )
+    transformer_rating: float | None = spec(
+        "apparent_power", "MVA", lo=1e4, hi=2e9, help="step-up transformer's rating (else the generator's)"
+    )
+    ride_through: tuple[RideThroughBand, ...] = spec(
+        "table", item=RideThroughBand, help="the system's frequency ride-through requirement: low, high, minimum time"
+    )
 
 
 @dataclass(frozen=True)
@@ -554,6 +611,18 @@ class Grounding:
     )
     transformer_ratio: Ratio | None = spec("ratio", "V", help="grounding transformer, e.g. '13800/240 V'")
     resistor: float | None = spec("impedance", "ohm", lo=1e-3, hi=1e6, help="grounding resistor as installed")
+    surge_capacitance: float | None = spec(
+        "capacitance", "uF", lo=0.0, hi=1e-4, allow_zero=True,
+        help="generators: surge capacitors per phase to ground (0 uF when none are fitted)"
+    )
+    bus_capacitance: float | None = spec(
+        "capacitance", "uF", lo=0.0, hi=1e-3, allow_zero=True,
+        help="generators: the generator's bus (isolated-phase bus or cables) per phase to ground"
+    )
+    transformer_capacitance: float | None = spec(
+        "capacitance", "uF", lo=0.0, hi=1e-4, allow_zero=True,
+        help="generators: the step-up transformer's LV winding per phase to ground"
+    )
 
 
 @dataclass(frozen=True)
@@ -564,6 +633,7 @@ class Instruments:
     ground_ct: Ratio | None = spec("ratio", "A", help="core-balance CT, e.g. '50/1 A'")
     vt: Ratio | None = spec("ratio", "V", help="e.g. '6600/110 V'")
     neutral_vt: Ratio | None = spec("ratio", "V", help="neutral voltage transformer, if not a grounding transformer")
+    neutral_ct: Ratio | None = spec("ratio", "A", help="generators: CT in the machine's neutral, e.g. '400/5 A'")
     phase_ct_class: str | None = spec("ct_class", help="IEEE C57.13 class, e.g. 'C200' (or IEC '5P20')")
     phase_ct_burden: float | None = spec(
         "impedance", "ohm", lo=1e-3, hi=100.0, help="total secondary burden: leads and relay"
@@ -601,6 +671,8 @@ class MachineCase:
     relay: RelaySteps = field(default_factory=RelaySteps)
     overrides: tuple[tuple[str, str], ...] = ()
     entered: dict = field(default_factory=dict, compare=False, hash=False, repr=False)
+    #: False for a generator file without [supply]: the machine is studied alone (``supply`` holds defaults)
+    supply_given: bool = True
 
     @property
     def is_motor(self) -> bool:
@@ -695,6 +767,7 @@ def validate_case(case: MachineCase) -> list[str]:
             raise InputError("load", "a motor needs a [load] table (at least load.inertia)")
     else:
         warnings += _validate_generator(m)
+        warnings += _validate_generator_system(case)
     if case.instruments.phase_ct.primary <= 0 or case.instruments.phase_ct.secondary <= 0:
         raise InputError(
             "instruments.phase_ct", "expected a CT ratio with positive primary and secondary such as '200/1 A'"
@@ -830,6 +903,12 @@ def _validate_generator(g: SynchronousGenerator) -> list[str]:
             f"expected a synchronous speed 120·f/p at {g.frequency:g} Hz "
             f"(e.g. {ws * 30 / math.pi:.0f} rpm), got {g.rated_speed * 30 / math.pi:.1f} rpm",
         )
+    for name in ("capability", "uel"):
+        rows = getattr(g, name)
+        ps = [r.active_power for r in rows]
+        if any(b <= a for a, b in zip(ps, ps[1:])):
+            raise InputError(f"machine.{name}", "expected the rows in order of rising active power, each once, got "
+                                                + " / ".join(f"{p:g}" for p in ps) + " pu")
     salient = g.rotor.startswith("salient")
     if salient and poles == 2:
         warnings.append("machine.rotor is salient but the speed gives a 2-pole machine: check the rotor type")
@@ -839,4 +918,22 @@ def _validate_generator(g: SynchronousGenerator) -> list[str]:
             raise InputError(
                 f"machine.frequency_limits[{i}].low", f"expected below high ({b.high:g} Hz), got {b.low:g} Hz"
             )
+    return warnings
+
+
+def _validate_generator_system(case: MachineCase) -> list[str]:
+    """A generator's system data: ride-through bands, and step-up transformer data that the connection ignores."""
+    warnings = []
+    s, g = case.supply, case.grounding
+    for i, b in enumerate(s.ride_through):
+        if b.low >= b.high:
+            raise InputError(f"supply.ride_through[{i}].low", f"expected below high ({b.high:g} Hz), got {b.low:g} Hz")
+    if s.connection == "bus":
+        given = [k for k, v in (("supply.transformer_lv_voltage", s.transformer_lv_voltage),
+                                ("supply.transformer_impedance", s.transformer_impedance),
+                                ("supply.transformer_rating", s.transformer_rating),
+                                ("grounding.transformer_capacitance", g.transformer_capacitance)) if v]
+        if given:
+            warnings.append(f"supply.connection is 'bus': {', '.join(given)} describe a unit step-up transformer and "
+                            "are not used")
     return warnings

@@ -47,7 +47,7 @@ def test_loss_of_field_reference_case():
 def test_loss_of_field_circles_on_the_drawing():
     # METHODS.md §9.6: far reach zone 1 −17.85 Ω sec, zone 2 −30.55 Ω sec
     rx = next(d for d in study().drawings if d.kind == "r-x")
-    bottoms = sorted(c.center[1] - c.radius for c in rx.circles)
+    bottoms = sorted(c.center[1] - c.radius for c in rx.circles if c.label.startswith("40"))
     assert bottoms == pytest.approx([-30.55, -17.85], rel=5e-4)
 
 
@@ -192,8 +192,9 @@ def test_installed_resistor_too_large_warns():
 def test_27tn_from_third_harmonic():
     # METHODS.md §7.1 (value from memory): 27TN at 50 % of the lowest healthy V3N; 300 V → 150 V, 13800/240 neutral VT
     s = study().function("27TN").settings
-    assert s["pickup_voltage"].value == pytest.approx(150.0, abs=0.5 * 0.001 * 13800 / 240)  # half a 1 mV step
-    assert s["pickup_voltage"].secondary == pytest.approx(150.0 * 240 / 13800, abs=0.0005)
+    # rounded down to the 1 mV secondary step: never above half the healthy V3N
+    assert 150.0 - 0.001 * 13800 / 240 < s["pickup_voltage"].value <= 150.0
+    assert s["pickup_voltage"].secondary == pytest.approx(150.0 * 240 / 13800, abs=0.001)
 
 
 def test_no_third_harmonic_data_leaves_27tn_out_with_warning():
@@ -218,11 +219,13 @@ def test_low_resistance_grounding_gives_51n():
 
 
 @pytest.mark.parametrize("prime_mover, rotor, speed, primary, secondary", [
-    # Blackburn & Domin motoring power, 50 % pickup; check values METHODS.md §9.6 (85 MW, CTR 1000, VTR 120)
-    ("steam-turbine", "cylindrical-indirect", "3600 rpm", 0.8500e6, 7.083),
-    ("hydro", "salient-with-damper", "450 rpm", 0.4250e6, 3.542),
-    ("reciprocating-engine", "salient-with-damper", "900 rpm", 10.62e6, 88.54),
-    ("gas-turbine", "cylindrical-indirect", "3600 rpm", 21.25e6, 177.1),
+    # IEEE C37.102 motoring power ranges (value from memory), pickup half the low end of the range; 85 MW,
+    # P_sec = P / (CTR·VTR) with CTR 1000, VTR 120 (METHODS.md §9.6): steam 1 %, hydro 0.2 %, engine 5 %, gas
+    # turbine 10 %
+    ("steam-turbine", "cylindrical-indirect", "3600 rpm", 0.5 * 0.01 * 85e6, 3.542),
+    ("hydro", "salient-with-damper", "450 rpm", 0.5 * 0.002 * 85e6, 0.7083),
+    ("reciprocating-engine", "salient-with-damper", "900 rpm", 0.5 * 0.05 * 85e6, 17.71),
+    ("gas-turbine", "cylindrical-indirect", "3600 rpm", 0.5 * 0.10 * 85e6, 35.42),
 ])
 def test_reverse_power_by_prime_mover(prime_mover, rotor, speed, primary, secondary):
     fs = study(**{"machine.prime_mover": prime_mover, "machine.rotor": rotor,
@@ -234,9 +237,9 @@ def test_reverse_power_by_prime_mover(prime_mover, rotor, speed, primary, second
 
 
 def test_reverse_power_measuring_range():
-    # √3·120 V·5 A = 1039 W nominal; 7.083 W is 0.68 %: sensitive element needed (common practice)
+    # √3·120 V·5 A = 1039 W nominal; 3.542 W is 0.34 %: sensitive element needed (common practice)
     fs = study().function("32")
-    assert "warn" in _statuses(fs, "0.68%")
+    assert "warn" in _statuses(fs, "0.34%")
     maker = study(**{"machine.motoring_power": "50 kW"}).function("32")
     # half the maker's 50 kW, rounded down to the 1 mW secondary step (CTR·VTR = 120 000)
     assert maker.settings["pickup_power"].value == pytest.approx(25e3, abs=0.001 * 5000 / 5 * 14400 / 120)
@@ -269,10 +272,11 @@ def test_49_time_constant_fits_c50_13():
     # IEC 60255-149 hot operate time ≤ C50.13 armature capability at each point (METHODS.md §2.1, 10)
     fs = study().function("49")
     tau = fs.settings["heating_time_constant"].value
-    # [derived] the 116 % / 120 s point limits τ: 120 / ln((1.16² − 1)/(1.16² − 1.05²)) = 341.1 s
-    fit = 120 / math.log((1.16 ** 2 - 1) / (1.16 ** 2 - 1.05 ** 2))
-    assert fit - 0.1 < tau <= fit  # rounded down to the 0.1 s step: never slower than the capability
-    assert tau == pytest.approx(341.1, rel=5e-4)
+    # [derived] the 116 % / 120 s point limits τ: 120 / ln((1.16² − 1)/(1.16² − 1.05²)) = 341.1 s to trip on the
+    # capability; the study trips at 90 % of it (common practice, no published source): 307.0 s
+    fit = 0.9 * 120 / math.log((1.16 ** 2 - 1) / (1.16 ** 2 - 1.05 ** 2))
+    assert fit - 0.1 < tau <= fit  # rounded down to the 0.1 s step: never slower
+    assert tau == pytest.approx(0.9 * 341.1, rel=5e-4)
     assert all(c.status == "ok" for c in fs.checks if "armature" in c.message)
     hot = [t for t in fs.test_points if t.initial_state.startswith("hot")]
     assert len(hot) >= 3
@@ -283,7 +287,7 @@ def test_49_slow_time_constant_fails():
     data = generator_data()
     data["overrides"] = {"49.heating_time_constant": "3000 s"}
     fs = _run(data).function("49")
-    assert "fail" in _statuses(fs, "later than the armature")
+    assert "fail" in _statuses(fs, "not before the armature")
 
 
 # ---------------------------------------------------------------------------------------------------- 81
@@ -302,7 +306,7 @@ def test_steam_turbine_without_bands_gets_conservative_stages():
     fs = study().function("81U")
     assert fs.settings["stages"].source == "common-practice"
     assert "warn" in _statuses(fs, "No maker's off-frequency bands below nominal")
-    assert "conservative" in fs.basis
+    assert "starting stages labelled as such" in fs.basis
     stages = fs.settings["stages"].value
     assert [s["frequency"] for s in stages] == pytest.approx([0.975 * 60, 0.96 * 60])
 

@@ -3,6 +3,7 @@
 from __future__ import annotations
 
 import math
+import re
 
 from hypothesis import given, settings, strategies as st
 
@@ -48,10 +49,54 @@ def generators(draw):
         grounding["fault_current_limit"] = f"{draw(st.sampled_from([100, 200, 400, 800]))} A"
     supply = {"nominal_voltage": f"{kv} kV", "fault_level": f"{draw(st.floats(3.0, 40.0)) * s_mva:.5g} MVA",
               "system_rating": f"{draw(st.floats(1.5, 20.0)) * s_mva:.5g} MVA", "system_inertia": "3 s"}
+    instruments = {"phase_ct": f"{ct}/5 A", "vt": f"{kv * 1e3:g}/120 V", "ground_ct": "100/5 A"}
     data = {"format": "relaywright.machine/1", "sheet": {"tag": "P-G-1"}, "machine": machine, "supply": supply,
-            "grounding": grounding,
-            "instruments": {"phase_ct": f"{ct}/5 A", "vt": f"{kv * 1e3:g}/120 V", "ground_ct": "100/5 A"}}
+            "grounding": grounding, "instruments": instruments}
+    _system(draw, data, f, s_mva)
     return data
+
+
+def _system(draw, data: dict, f: float, s_mva: float) -> None:
+    """The exciter, the connection, the zone's capacitances, the neutral CT, ride-through bands, the capability
+    and the limiter: each drawn or left out, and sometimes no [supply] at all."""
+    machine, supply, grounding = data["machine"], data["supply"], data["grounding"]
+    excitation = draw(st.sampled_from([None, "static", "brushless", "rotating-dc"]))
+    if excitation:
+        machine["excitation"] = excitation
+    connection = draw(st.sampled_from([None, "unit-transformer", "bus"]))
+    if connection:
+        supply["connection"] = connection
+    if connection == "unit-transformer" and draw(st.booleans()):
+        supply["transformer_impedance"] = f"{draw(st.floats(0.05, 0.15)):.3f} pu"
+        supply["transformer_rating"] = f"{s_mva * draw(st.floats(1.0, 1.3)):.5g} MVA"
+    if grounding["method"] != "low-resistance":
+        for key, lo, hi in (("surge_capacitance", 0.0, 0.5), ("bus_capacitance", 0.0, 0.05),
+                            ("transformer_capacitance", 0.0, 0.01)):
+            if draw(st.booleans()):
+                grounding[key] = f"{draw(st.floats(lo, hi)):.4g} uF"
+    elif draw(st.booleans()):
+        data["instruments"]["neutral_ct"] = "400/5 A"
+    if draw(st.booleans()):  # a grid code of bands around nominal
+        supply["ride_through"] = [
+            {"low": f"{0.99 * f:.4g} Hz", "high": f"{1.01 * f:.4g} Hz", "minimum_time": "100000000 s"},
+            {"low": f"{0.975 * f:.4g} Hz", "high": f"{0.99 * f:.4g} Hz",
+             "minimum_time": f"{draw(st.sampled_from([60, 180, 1800]))} s"},
+            {"low": f"{0.95 * f:.4g} Hz", "high": f"{0.975 * f:.4g} Hz",
+             "minimum_time": f"{draw(st.sampled_from([5, 10, 30]))} s"},
+            {"low": f"{1.01 * f:.4g} Hz", "high": f"{1.03 * f:.4g} Hz",
+             "minimum_time": f"{draw(st.sampled_from([10, 60, 180]))} s"}]
+    if draw(st.booleans()):
+        supply["load_shedding_stages"] = [{"frequency": f"{0.985 * f:.4g} Hz", "time_delay": "0.2 s"},
+                                          {"frequency": f"{0.98 * f:.4g} Hz", "time_delay": "0.3 s"}]
+    if draw(st.booleans()):
+        q0 = draw(st.floats(0.3, 0.6))
+        machine["capability"] = [{"active_power": f"{p:g} pu", "reactive_absorbed": f"{q0 * (1 - 0.6 * p):.3f} pu"}
+                                 for p in (0.0, 0.5, 1.0)]
+        if draw(st.booleans()):
+            machine["uel"] = [{"active_power": f"{p:g} pu", "reactive_absorbed": f"{0.8 * q0 * (1 - 0.6 * p):.3f} pu"}
+                              for p in (0.0, 0.5, 1.0)]
+    if draw(st.integers(0, 9)) == 0:
+        del data["supply"]  # the machine studied alone
 
 
 def _floats(value):
@@ -103,6 +148,23 @@ def test_study_of_any_plausible_generator(data):
             for x, y in s.points:
                 assert math.isfinite(x) and math.isfinite(y)
                 assert (x > 0 or not d.log_x) and (y > 0 or not d.log_y)
+    # every generator has loss-of-potential supervision and inadvertent-energisation protection (IEEE C37.102,
+    # from memory); 87N wherever a neutral CT sees a measurable earth-fault current (METHODS.md §9.9)
+    assert record.function("60") is not None and record.function("50/27") is not None
+    case = case_from_dict(data)[0]
+    if case.instruments.neutral_ct is not None and case.grounding.method == "low-resistance":
+        assert record.function("87N") is not None or any("87N is not applied" in c.message for c in record.checks)
+    # no derived value among the settings: what is not keyed into the relay is marked so
+    for fs in record.functions:
+        for key, s in fs.settings.items():
+            assert s.keyed or s.source in ("derived", "standard", "entered"), (fs.id, key)
+            assert s.source != "derived" or not s.keyed, (fs.id, key)
+    # no infinity or not-a-number in anything the sheet prints
+    words = [c.message for _, c in record.all_checks()] + [f.basis for f in record.functions]
+    words += [s.note for f in record.functions for s in f.settings.values()]
+    words += [t.description for f in record.functions for t in f.test_points]
+    for text in words:
+        assert not re.search(r"\b(inf|nan)\b", text, re.IGNORECASE), text
     # 81U stays below nominal, 81O above
     f0 = case_from_dict(data)[0].machine.frequency
     assert all(st_["frequency"] < f0 for st_ in record.function("81U").settings["stages"].value)

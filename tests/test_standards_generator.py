@@ -61,17 +61,22 @@ def test_sustained_fault_current():
     assert gc.restrained_pickup(1.5 * 4184.0, 0.4) > i
 
 
-@pytest.mark.parametrize("prime_mover, share, primary, secondary", [
-    # Blackburn & Domin motoring power (METHODS.md §9.1), pickup 50 %, check values METHODS.md §9.6 (85 MW, CTR 1000,
-    # VTR 120)
-    ("steam-turbine", 0.02, 0.8500e6, 7.083), ("hydro", 0.01, 0.4250e6, 3.542),
-    ("reciprocating-engine", 0.25, 10.62e6, 88.54), ("gas-turbine", 0.50, 21.25e6, 177.1),
+@pytest.mark.parametrize("primary, secondary", [
+    # P_sec = P / (CTR·VTR), check values METHODS.md §9.6 (CTR 1000, VTR 120)
+    (0.8500e6, 7.083), (0.4250e6, 3.542), (10.62e6, 88.54), (21.25e6, 177.1),
 ])
-def test_reverse_power(prime_mover, share, primary, secondary):
-    assert gc.motoring_power_fraction(prime_mover)[1] == share
-    p = 0.5 * share * 85e6
-    assert p == pytest.approx(primary, rel=5e-4)
-    assert gc.secondary_power(p, 1000, 120) == pytest.approx(secondary, rel=5e-4)
+def test_secondary_power(primary, secondary):
+    assert gc.secondary_power(primary, 1000, 120) == pytest.approx(secondary, rel=5e-4)
+
+
+@pytest.mark.parametrize("prime_mover, lowest, highest", [
+    # IEEE C37.102 motoring power by prime mover (value from memory): steam 1–3 %, hydro 0.2–2 %, reciprocating
+    # engines 5–25 %, gas turbines 10 % (two-shaft) to 100 % (single-shaft)
+    ("steam-turbine", 0.01, 0.03), ("hydro", 0.002, 0.02), ("reciprocating-engine", 0.05, 0.25),
+    ("gas-turbine", 0.10, 1.00),
+])
+def test_motoring_power_ranges(prime_mover, lowest, highest):
+    assert gc.motoring_power_fraction(prime_mover) == (lowest, highest)
 
 
 @pytest.mark.parametrize("restraint, threshold", [

@@ -50,11 +50,11 @@ MOTOR = IDENT_MOTOR + NAMEPLATE_MOTOR + REST_MOTOR
 WRITE = [ENTER]
 
 GENERATOR = [DOWN + ENTER, "GT-G-1", "Gas turbine generator 1", "", "L. Brandt", "", "", "", ENTER,
-             "12.5 MVA", "11 kV", "50 Hz", "1500", "0.8", "n", "1.9", "0.22", "0.14", "",
+             "12.5 MVA", "11 kV", "50 Hz", "1500", "0.8", "n", "1.9", "0.22", "0.14", "", DOWN + ENTER,
              DOWN + ENTER, ENTER, "",
-             "", "500 MVA", "", "", "", "n", "",
-             DOWN * 4 + ENTER, "8 A", "11000/240 V", "", "0.3 uF",
-             "800/1 A", "", "", "", "11000/110 V", "", "",
+             "", ENTER, "500 MVA", "", "", "", "", "n", "n", "",
+             DOWN * 4 + ENTER, "8 A", "11000/240 V", "", "0.25 uF", "", "",
+             "800/1 A", "", "", "11000/110 V", "", "",
              ENTER]
 
 
@@ -86,7 +86,9 @@ def test_full_generator_session_writes_a_valid_machine_file(tmp_path):
     # round rotor offered for a gas turbine (common practice, no published source)
     assert data["machine"]["rotor"] == "cylindrical-indirect"
     assert data["grounding"] == {"method": "distribution-transformer", "fault_current_limit": "8 A",
-                                 "transformer_ratio": "11000/240 V", "system_capacitance": "0.3 uF"}
+                                 "transformer_ratio": "11000/240 V", "surge_capacitance": "0.25 uF"}
+    # the exciter and the connection are asked (a brushless exciter, a unit transformer)
+    assert (data["machine"]["excitation"], data["supply"]["connection"]) == ("brushless", "unit-transformer")
     assert "load" not in data
 
 

@@ -216,6 +216,23 @@ def both(*rules: Rule) -> Rule:
     return lambda a: all(r(a) for r in rules)
 
 
+def unit_connected(a: Answers) -> bool:
+    """A generator on its own step-up (unit) transformer."""
+    return a.kind == GENERATOR and a.get("supply.connection") == "unit-transformer"
+
+
+def blank_motoring_power(a: Answers) -> str:
+    """What a blank motoring power means, in the words of the prime mover."""
+    from machines.protection.generator_terms import prime_mover, with_article
+    from machines.standards.generator_capability import MOTORING_POWER
+
+    mover = a.get("machine.prime_mover")
+    if mover not in MOTORING_POWER:
+        return "the low end of the prime mover's range"
+    return (f"{MOTORING_POWER[mover][0]:.1%} of rated power, the low end of the range for "
+            f"{with_article(prime_mover(mover))}; measure it at commissioning")
+
+
 # ---- defaults from earlier answers and standards
 
 
@@ -486,6 +503,20 @@ QUESTIONS: tuple[Question, ...] = (
              when=both(G, makers_data), help="seconds on the machine's rating", blank=constant("not known")),
     Question("machine.vhz_limit", "Overexcitation limit of the generator", "V/Hz limit", "nameplate", when=G,
              help="pu volts per hertz it stands continuously"),
+    Question("machine.excitation", "How is the field supplied?", "Exciter", "nameplate", when=G,
+             choices=(("static", "a static exciter fed from the terminals, through slip rings"),
+                      ("brushless", "a brushless exciter (rotating diodes, no slip rings)"),
+                      ("rotating-dc", "a rotating DC exciter (commutator)")),
+             help="a static exciter cannot sustain the fault current; slip rings allow field-ground protection",
+             required=lambda a: True),
+    Question("machine.capability", "Does the maker's capability curve give the underexcited (leading) limit?",
+             "Capability curve, underexcited side", "nameplate", when=both(G, makers_data),
+             row_text=(("active_power", "active power of point {n}, pu of rated MVA"),
+                       ("reactive_absorbed", "reactive power absorbed at point {n}, pu of rated MVA"))),
+    Question("machine.uel", "Is the voltage regulator's under-excitation limiter setting known?",
+             "Under-excitation limiter", "nameplate", when=both(G, makers_data),
+             row_text=(("active_power", "active power of point {n}, pu of rated MVA"),
+                       ("reactive_absorbed", "reactive power absorbed at point {n}, pu of rated MVA"))),
     Question("machine.frequency_limits", "Does the maker give off-frequency limits (bands with allowed time)?",
              "Off-frequency limits", "nameplate", when=both(G, makers_data),
              row_text=(("low", "lowest frequency of band {n}"), ("high", "highest frequency of band {n}"),
@@ -514,16 +545,24 @@ QUESTIONS: tuple[Question, ...] = (
                       ("salient-with-damper", "salient poles with damper winding"),
                       ("salient-without-damper", "salient poles without damper winding")),
              after=("machine.prime_mover",)),
-    Question("machine.motoring_power", "Power the generator draws when motoring (prime mover tripped)",
-             "Motoring power", "drive", when=G, help="kW, from the maker or a test",
-             blank=constant("typical for the prime mover")),
+    Question("machine.motoring_power", "Power the generator draws when it motors (its prime mover shut down)",
+             "Motoring power", "drive", when=G, help="kW, from the maker or a commissioning test",
+             blank=blank_motoring_power, after=("machine.prime_mover",)),
 
     # supply and starter
     Question("supply.nominal_voltage", "Nominal voltage of the bus it is connected to", "Bus voltage", "supply",
              default=copy_of("machine.rated_voltage"), help="from the single-line diagram",
              after=("machine.rated_voltage",)),
+    Question("supply.connection", "How is the generator connected to the system?", "Connection", "supply",
+             when=G, required=lambda a: True,
+             choices=(("unit-transformer", "through its own step-up (unit) transformer"),
+                      ("bus", "directly to a bus shared with other machines or feeders"))),
     Question("supply.fault_level", "Three-phase fault level at that bus, maximum", "Fault level, maximum",
-             "supply", help="MVA from the single-line diagram or the fault study",
+             "supply", when=M, help="MVA from the single-line diagram or the fault study",
+             blank=constant("not known: the source impedance is asked next")),
+    Question("supply.fault_level", "Three-phase fault level the system brings to the generator's terminals, "
+             "maximum", "Fault level, maximum", "supply", when=G,
+             help="MVA, this generator left out; through the step-up transformer where there is one",
              blank=constant("not known: the source impedance is asked next")),
     Question("supply.minimum_fault_level", "Fault level at that bus with the weakest source", "Fault level, "
              "minimum", "supply", when=lambda a: a.has("supply.fault_level"), blank=constant("same as maximum")),
@@ -544,15 +583,26 @@ QUESTIONS: tuple[Question, ...] = (
     Question("supply.underfrequency_stages", "Is this motor tripped by under-frequency load shedding?",
              "Load-shedding stages", "supply", when=M,
              row_text=(("frequency", "frequency of stage {n}"), ("time_delay", "time delay of stage {n}"))),
-    Question("supply.transformer_lv_voltage", "If the generator has its own step-up transformer: its "
-             "low-voltage rating", "Step-up transformer LV", "supply", when=G, blank=constant("no step-up "
-             "transformer")),
+    Question("supply.transformer_lv_voltage", "Low-voltage rating of the step-up transformer",
+             "Step-up transformer LV", "supply", when=unit_connected,
+             blank=constant("the generator's rated voltage (a finding says so)"), after=("supply.connection",)),
     Question("supply.transformer_vhz_limit", "Overexcitation limit of the step-up transformer", "Transformer "
-             "V/Hz limit", "supply", when=lambda a: is_generator(a) and a.has("supply.transformer_lv_voltage"),
+             "V/Hz limit", "supply", when=lambda a: unit_connected(a) and a.has("supply.transformer_lv_voltage"),
              help="pu volts per hertz"),
+    Question("supply.transformer_impedance", "Impedance of the step-up transformer", "Transformer impedance",
+             "supply", when=unit_connected, help="on its own rating, e.g. 8 % or 0.08 pu",
+             blank=constant("not known: the 21 reach and the 51V reach are judged without it"),
+             after=("supply.connection",)),
+    Question("supply.transformer_rating", "Rating of the step-up transformer", "Transformer rating", "supply",
+             when=lambda a: unit_connected(a) and a.has("supply.transformer_impedance"), help="MVA",
+             blank=constant("the generator's rating")),
     Question("supply.load_shedding_stages", "Does the plant shed load on under-frequency?", "Plant load-shedding "
              "stages", "supply", when=G,
              row_text=(("frequency", "frequency of stage {n}"), ("time_delay", "time delay of stage {n}"))),
+    Question("supply.ride_through", "Does the grid code require the unit to ride through off-nominal frequency "
+             "(bands with a minimum time)?", "Frequency ride-through", "supply", when=G,
+             row_text=(("low", "lowest frequency of band {n}"), ("high", "highest frequency of band {n}"),
+                       ("minimum_time", "time the unit must stay connected in band {n} (1e8 s: continuously)"))),
     Question("supply.system_rating", "If the plant can run islanded: total rating of the islanded system",
              "Islanded system rating", "supply", when=G, blank=constant("never islanded")),
     Question("supply.system_inertia", "Inertia constant H of the islanded system", "Islanded system H", "supply",
@@ -577,10 +627,25 @@ QUESTIONS: tuple[Question, ...] = (
              when=grounding_is("high-resistance", "distribution-transformer"),
              help="ohm; on the transformer's secondary where there is one", blank=constant("to be sized"),
              after=("grounding.method",)),
+    Question("grounding.surge_capacitance", "Surge capacitors at the generator terminals, per phase to ground",
+             "Surge capacitors", "grounding",
+             when=both(G, grounding_is("ungrounded", "high-resistance", "distribution-transformer")),
+             help="e.g. 0.25 uF; 0 uF when none are fitted", blank=constant("not known: the resistor is sized on "
+                                                                             "part of the capacitance")),
+    Question("grounding.bus_capacitance", "Capacitance of the generator's bus or cables, per phase to ground",
+             "Bus capacitance", "grounding",
+             when=both(G, grounding_is("ungrounded", "high-resistance", "distribution-transformer")),
+             help="isolated-phase bus or cables to the breaker or transformer, e.g. 0.02 uF",
+             blank=constant("not known")),
+    Question("grounding.transformer_capacitance", "Capacitance of the step-up transformer's LV winding, per "
+             "phase to ground", "Transformer capacitance", "grounding",
+             when=both(unit_connected, grounding_is("ungrounded", "high-resistance", "distribution-transformer")),
+             help="e.g. 0.005 uF", blank=constant("not known")),
     Question("grounding.system_capacitance", "Capacitance of the rest of the connected system, per phase to "
              "ground", "System capacitance", "grounding",
-             when=grounding_is("ungrounded", "high-resistance", "distribution-transformer"), help="e.g. 0.5 uF",
-             blank=constant("not known")),
+             when=both(lambda a: not unit_connected(a),
+                       grounding_is("ungrounded", "high-resistance", "distribution-transformer")),
+             help="e.g. 0.5 uF", blank=constant("not known")),
     Question("grounding.circuit_capacitance", "Capacitance of this machine's own cable and winding, per phase to "
              "ground", "Circuit capacitance", "grounding",
              when=both(M, lambda a: a.get("grounding.method") != "solid"),
@@ -593,7 +658,11 @@ QUESTIONS: tuple[Question, ...] = (
     Question("instruments.phase_ct_burden", "Total burden on the phase CTs (leads and relay)", "Phase CT burden",
              "instruments", help="ohm", blank=constant("not known")),
     Question("instruments.ground_ct", "Core-balance (zero-sequence) CT ratio", "Core-balance CT", "instruments",
-             help="e.g. 50/1 A", blank=constant("none fitted")),
+             when=M, help="e.g. 50/1 A", blank=constant("none fitted")),
+    Question("instruments.neutral_ct", "CT in the generator's neutral", "Neutral CT", "instruments",
+             when=both(G, grounding_is("low-resistance", "solid")),
+             help="e.g. 200/5 A; it allows restricted earth-fault protection (87N)",
+             blank=constant("none: the earth-fault element uses the residual of the phase CTs")),
     Question("instruments.vt", "Voltage transformer ratio", "VTs", "instruments", help="e.g. 6600/110 V",
              blank=constant("none")),
     Question("instruments.neutral_vt", "Neutral voltage transformer ratio", "Neutral VT", "instruments", when=G,

@@ -1,23 +1,32 @@
 """87G generator percentage differential, with the IEEE C37.110 check of the differential CTs.
 
 METHODS.md §9.5 (common practice): single slope about 10 %, minimum pickup 0.1–0.3 A on 5 A CTs (here 6 % of the CT
-secondary rating, 0.3 A on 5 A), unrestrained stage at 8 × rated current or more. For an external fault the
-CTs at both ends carry the generator's own contribution; if one saturates, the false differential current can
-operate the element, so the differential CTs are checked at that current with the C37.110 criterion.
+secondary rating, 0.3 A on 5 A). For an external fault the CTs at both ends carry the generator's own contribution,
+up to E''/X''d with a fully offset first cycle; if one CT saturates, the whole of that current can appear as
+differential current. The unrestrained stage, which has no bias to hold it, is therefore set above the largest
+through-fault current with its DC offset (and at least 8 × rated), and the differential CTs are checked at that
+current with the C37.110 criterion.
+
+Test injections: ``phases`` are the currents of the terminal-side CTs and ``current_phases`` those of the
+neutral-side CTs, both read as currents flowing into the winding, so that a through current is equal and opposite
+on the two sides and the differential current is their sum.
 """
 
 from __future__ import annotations
 
-from machines.protection.base import StudyContext, current_setting, timed_test_point
+from machines.protection.base import StudyContext, balanced, current_setting, single, timed_test_point
+from machines.protection.generator_injection import hold_time
 from machines.record import Check, FunctionSettings, Setting
 from machines.standards.ct_saturation import (SATURATION_LIMIT, c37110_saturation_index, c_class_voltage,
                                               is_iec_protective_class)
+from machines.standards.fault_current import FULL_OFFSET_RMS_FACTOR
 from machines.standards.generator_capability import differential_operate_threshold
 
 FID = "87G"
 MIN_PICKUP_FRACTION = 0.06  #: of the CT secondary rating (0.3 A on 5 A; METHODS.md §9.5: 0.1–0.3 A)
 SLOPE = 0.10  #: METHODS.md §9.5 (common practice)
 UNRESTRAINED = 8.0  #: [× rated current] METHODS.md §9.5: ≥ 8–10 pu (common practice)
+THROUGH_MARGIN = 1.2  #: unrestrained stage ≥ 1.2 × the offset through-fault current (common practice)
 EXTERNAL_FAULT_EMF = 1.1  #: [pu] subtransient EMF of a loaded machine for the largest through fault (common practice)
 OPERATE_TIME = 0.03  #: [s] typical operate time of a numerical differential (maker's data govern)
 
@@ -73,8 +82,14 @@ def settings(ctx: StudyContext) -> FunctionSettings:
     pickup, p_src = ctx.choose(FID, "minimum_pickup", MIN_PICKUP_FRACTION * ct.primary, "current", "A",
                                "common-practice", via=ct)
     slope, s_src = ctx.choose(FID, "slope", SLOPE, "per_unit", "", "common-practice")
-    high, h_src = ctx.choose(FID, "unrestrained_pickup", UNRESTRAINED * ir, "current", "A", "common-practice",
-                             via=ct)
+    through = EXTERNAL_FAULT_EMF * basis.subtransient_fault_current
+    through_peak = FULL_OFFSET_RMS_FACTOR * through  # first-cycle rms, full offset, no decay: an upper bound
+    ctx.derived["maximum_through_fault_current"] = Setting(
+        through_peak, "A", "derived", label="Largest through-fault current, first-cycle rms with full DC offset",
+        note=f"√3 × E''/X''d, E'' = {EXTERNAL_FAULT_EMF:g} pu")
+    # rounded up: the unrestrained stage stays above the through-fault current
+    high, h_src = ctx.choose(FID, "unrestrained_pickup", max(UNRESTRAINED * ir, THROUGH_MARGIN * through_peak),
+                             "current", "A", "common-practice", via=ct, rounding="up")
     share = pickup / ir
     if 0.05 <= share <= 0.30:
         checks.append(Check("ok", f"Minimum pickup {pickup:.4g} A is {share:.1%} of rated current."))
@@ -86,9 +101,17 @@ def settings(ctx: StudyContext) -> FunctionSettings:
                                     f"the neutral are missed."))
     if not 0.0 < slope < 1.0:
         checks.append(Check("fail", f"Slope {slope:g} must be between 0 and 1."))
-    if high < 4 * ir:
-        checks.append(Check("warn", f"Unrestrained stage {high / ir:.3g} × rated is low: CT saturation on external "
-                                    f"faults can operate it."))
+    text = (f"Unrestrained stage {high:.4g} A ({high / ir:.3g} × rated) against the largest through-fault current "
+            f"{through:.4g} A symmetrical (E''/X''d = {EXTERNAL_FAULT_EMF:g}/{ctx.case.machine.xd_subtransient:g} "
+            f"pu), {through_peak:.4g} A with full DC offset")
+    if high >= THROUGH_MARGIN * through_peak * (1 - 1e-9):
+        checks.append(Check("ok", text + f": at least {THROUGH_MARGIN:g} × above it, so a saturated CT on an "
+                                         f"external fault cannot operate it."))
+    elif high > through_peak:
+        checks.append(Check("warn", text + ": above it with little margin."))
+    else:
+        checks.append(Check("fail", text + ": not above it, so a CT saturating on an external fault can trip the "
+                                           "generator."))
     _ct_check(ctx, checks, ct)
     values = {
         "minimum_pickup": current_setting(pickup, ct, p_src, "Minimum operate current",
@@ -96,27 +119,44 @@ def settings(ctx: StudyContext) -> FunctionSettings:
         "slope": Setting(slope, "pu", s_src, label="Percentage slope"),
         "unrestrained_pickup": current_setting(high, ct, h_src, "Unrestrained stage", f"{high / ir:.3g} × rated"),
     }
-    to_sec = ct.to_secondary
-    tests = [timed_test_point("differential current", to_sec(0.9 * pickup), "A", None, applied_primary=0.9 * pickup,
-                              primary_unit="A", description="one side only, 0.9 × minimum pickup: must not operate"),
-             timed_test_point("differential current", to_sec(1.2 * pickup), "A", OPERATE_TIME,
-                              applied_primary=1.2 * pickup, primary_unit="A",
-                              description="one side only, 1.2 × minimum pickup: operates instantaneously")]
-    for mult in (2.0, 4.0):
-        restraint = mult * ir
-        threshold = differential_operate_threshold(restraint, pickup, slope)
-        tests.append(timed_test_point("differential current", to_sec(1.1 * threshold), "A", OPERATE_TIME,
-                                      applied_primary=1.1 * threshold, primary_unit="A",
-                                      initial_state=f"through current {to_sec(restraint):.4g} A secondary",
-                                      description=f"slope at {mult:g} × rated restraint: 110 % of the "
-                                                  f"{to_sec(threshold):.4g} A threshold operates"))
-        tests.append(timed_test_point("differential current", to_sec(0.9 * threshold), "A", None,
-                                      applied_primary=0.9 * threshold, primary_unit="A",
-                                      initial_state=f"through current {to_sec(restraint):.4g} A secondary",
-                                      description=f"slope at {mult:g} × rated restraint: 90 % must not operate"))
+    tests = _tests(ct, ir, pickup, slope, high)
     basis_text = (f"Percentage differential: operate when I_diff > max({pickup:.4g} A, {slope:.0%} × I_restraint) "
                   f"(restraint = average of the two end currents); minimum pickup {MIN_PICKUP_FRACTION:.0%} of the "
                   f"CT secondary rating, low enough for faults well into the winding and above CT mismatch; "
-                  f"unrestrained stage {high / ir:.3g} × rated for heavy internal faults.")
+                  f"unrestrained stage {high / ir:.3g} × rated, above the largest through-fault current with its DC "
+                  f"offset, for heavy internal faults.")
     return FunctionSettings(FID, "Generator differential", values, basis_text,
                             references=["IEEE C37.102", "IEEE C37.110"], checks=checks, test_points=tests)
+
+
+def _tests(ct, ir: float, pickup: float, slope: float, high: float) -> list:
+    """One-side, slope and unrestrained injections; expected times with every stage enabled."""
+    to_sec = ct.to_secondary
+
+    def operates(i_diff: float, i_restraint: float) -> bool:
+        return i_diff > differential_operate_threshold(i_restraint, pickup, slope) or i_diff > high
+
+    def tp(side1: float, side2: float, description: str, state: str = "", one_phase: bool = False):
+        # side 1 (terminal CTs) carries side1 into the winding, side 2 (neutral CTs) carries side2 out of it
+        i_diff, i_res = abs(side1 - side2), (abs(side1) + abs(side2)) / 2.0
+        expected = OPERATE_TIME if operates(i_diff, i_res) else None
+        phases = single(to_sec(side1)) if one_phase else balanced(to_sec(side1))
+        other = None if side2 == 0 else balanced(to_sec(side2), 180.0)
+        return timed_test_point("differential current", to_sec(i_diff), "A", expected, applied_primary=i_diff,
+                                primary_unit="A", input="differential", phases=phases, current_phases=other,
+                                initial_state=state, description=description,
+                                duration=None if expected else hold_time(OPERATE_TIME))
+
+    tests = [tp(0.9 * pickup, 0.0, "one side only, 0.9 × minimum pickup: must not operate"),
+             tp(1.2 * pickup, 0.0, "one side only, 1.2 × minimum pickup: operates instantaneously")]
+    for mult in (2.0, 4.0):
+        restraint = mult * ir
+        threshold = differential_operate_threshold(restraint, pickup, slope)
+        for k, verdict in ((1.1, "operates"), (0.9, "must not operate")):
+            d = k * threshold
+            tests.append(tp(restraint + d / 2.0, restraint - d / 2.0,
+                            f"slope at {mult:g} × rated restraint: {k:.0%} of the {to_sec(threshold):.4g} A "
+                            f"threshold {verdict}", state=f"through current {to_sec(restraint):.4g} A secondary"))
+    tests.append(tp(1.1 * high, 0.0, "unrestrained stage: 110 % of its pickup in phase A, one side",
+                    one_phase=True))
+    return tests

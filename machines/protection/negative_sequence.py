@@ -9,7 +9,8 @@ else from the IEEE C50.12/C50.13 or IEC 60034-1 table the study's practice selec
 
 from __future__ import annotations
 
-from machines.protection.base import StudyContext, current_setting, timed_test_point
+from machines.protection.base import StudyContext, current_setting, from_sequence, timed_test_point
+from machines.protection.generator_injection import hold_time
 from machines.record import Check, FunctionSettings, Setting
 from machines.standards.negative_sequence import negative_sequence_trip_time, phase_phase_fault_negative_sequence
 
@@ -88,18 +89,22 @@ def settings(ctx: StudyContext) -> FunctionSettings:
     ctx.derived["phase_phase_fault_i2"] = Setting(i2_fault * ir, "A", "derived",
                                                   label="I2 of a terminal phase-to-phase fault",
                                                   note=f"E/(X''d + X2) = {i2_fault:.3g} pu")
-    tests = [timed_test_point("negative-sequence current", ct.to_secondary(0.95 * pickup), "A", None,
-                              applied_primary=0.95 * pickup, primary_unit="A",
-                              description="95 % of the inverse-stage pickup: must not trip"),
-             timed_test_point("negative-sequence current", ct.to_secondary(1.1 * alarm), "A", alarm_delay,
-                              applied_primary=1.1 * alarm, primary_unit="A",
-                              description="110 % of the alarm pickup: alarm after its delay")]
+    i1 = ct.to_secondary(ir)  # the tests inject rated positive-sequence current plus the I2 under test
+
+    def tp(i2_primary: float, expected, description: str, state: str = "", duration=None):
+        return timed_test_point("negative-sequence current", ct.to_secondary(i2_primary), "A", expected,
+                                applied_primary=i2_primary, primary_unit="A", initial_state=state,
+                                phases=from_sequence(complex(i1), complex(ct.to_secondary(i2_primary))),
+                                description=description, duration=duration)
+
+    tests = [tp(0.95 * pickup, None, "95 % of the inverse-stage pickup with rated I1: must not trip (the start "
+                                     "flag stays off)", duration=hold_time(alarm_delay)),
+             tp(1.1 * alarm, alarm_delay, "110 % of the alarm pickup with rated I1: alarm after its delay")]
     for mult in TEST_MULTIPLES:
         i_a = mult * pickup
         t = relay_trip_time(i_a / ir, k_set, max(tmin, 1e-6), tmax)
-        tests.append(timed_test_point("negative-sequence current", ct.to_secondary(i_a), "A", t,
-                                      applied_primary=i_a, primary_unit="A", initial_state="I2²t memory reset",
-                                      description=f"{mult:g} × pickup ({i_a / ir:.3g} pu): t = K/I2²"))
+        tests.append(tp(i_a, t, f"{mult:g} × pickup ({i_a / ir:.3g} pu) with rated I1: trip, t = K/I2²",
+                        "I2²t memory reset"))
     values = {
         "pickup_current": current_setting(pickup, ct, pick_src, "Inverse-stage pickup (I2)",
                                           f"{cont:.3g} pu of rated current"),

@@ -1,20 +1,26 @@
 """Stator earth-fault protection: 59N and 27TN on high-resistance grounding, 51N/50N on low-resistance grounding.
 
 High-resistance (or distribution-transformer) grounding, METHODS.md §7.1: the resistor is sized so that its current
-is at least the capacitive current (R_N ≤ X_C0/3, referred to the neutral); a fundamental-frequency neutral
-overvoltage element (59N) picked up at 5 % of the phase voltage covers 95 % of the winding from the terminals; a
-third-harmonic neutral undervoltage element (27TN) set at half the lowest healthy third-harmonic neutral voltage
-covers the part near the neutral, supervised by the terminal voltage.
+is at least the capacitive current of everything galvanically connected (R_N ≤ X_C0/3, referred to the neutral:
+the stator, the surge capacitors, the generator's bus and, on a unit-connected machine, the step-up transformer's
+LV winding); a fundamental-frequency neutral overvoltage element (59N) picked up at 5 % of the phase voltage covers
+95 % of the winding from the terminals; a third-harmonic neutral undervoltage element (27TN) set at half the lowest
+healthy third-harmonic neutral voltage covers the part near the neutral, supervised by the terminal voltage. Both
+are selective only on a unit-connected machine: on a shared bus the neutral voltage rises for an earth fault
+anywhere on the bus.
 
-Low-resistance or solid grounding: a neutral (or residual) overcurrent element, inverse-time with a definite-time
-high set, whose pickup fixes the fraction of the winding covered.
+Low-resistance or solid grounding: a neutral overcurrent element (51N/50N) on the neutral CT, inverse-time with a
+definite-time high set, whose pickup fixes the fraction of the winding covered; 87N (``neutral_differential``)
+adds the selective element.
 """
 
 from __future__ import annotations
 
 from machines.errors import InputError
 from machines.model import Ratio
-from machines.protection.base import StudyContext, current_setting, timed_test_point, voltage_setting
+from machines.protection.base import (StudyContext, balanced, current_setting, single, timed_test_point,
+                                     voltage_setting)
+from machines.protection.generator_injection import hold_time
 from machines.record import Check, FunctionSettings, Setting
 from machines.standards import grounding as gnd
 from machines.standards.inverse_time import CURVES, curve_constants, inverse_operate_time, time_multiplier_for
@@ -30,6 +36,11 @@ NEUTRAL_OC_TARGET = 1.0  #: [s] 51N time at the full earth-fault current (common
 HIGH_SET_FRACTION = 0.5  #: 50N at 50 % of the earth-fault current (common practice, no published source)
 HIGH_SET_DELAY = 0.5  #: [s] above feeder instantaneous earth-fault clearing (common practice)
 
+_PARTS = {"machine.stator_capacitance": "the stator", "grounding.surge_capacitance": "the surge capacitors "
+          "(0 uF if none are fitted)", "grounding.bus_capacitance": "the generator's bus or cables",
+          "grounding.transformer_capacitance": "the step-up transformer's LV winding",
+          "grounding.system_capacitance": "the rest of the bus"}
+
 
 def _neutral_ratio(ctx: StudyContext) -> tuple[Ratio | None, str]:
     """The ratio between the neutral voltage and what the relay sees, and where it comes from."""
@@ -41,64 +52,62 @@ def _neutral_ratio(ctx: StudyContext) -> tuple[Ratio | None, str]:
     return None, ""
 
 
-def _turns(ctx: StudyContext) -> float:
-    g = ctx.case.grounding
-    if g.method == "distribution-transformer" and g.transformer_ratio is not None:
-        return g.transformer_ratio.factor
-    return 1.0
+def _missing_text(keys) -> str:
+    return "; ".join(f"{k} ({_PARTS.get(k, k)})" for k in keys)
 
 
-def _resistor(ctx: StudyContext, checks: list[Check]) -> tuple[float | None, dict[str, Setting]]:
-    """Size or check the grounding resistor; return the primary-referred R_N in use and the record entries."""
+def _resistor(ctx: StudyContext, checks: list[Check]) -> dict[str, Setting]:
+    """Check the grounding resistor (installed or sized in prepare) against X_C0/3; the record entries."""
     basis, case = ctx.extras["generator"], ctx.case
-    m, g = case.machine, case.grounding
-    n = _turns(ctx)
-    c0 = basis.capacitance
+    g = case.grounding
+    n = basis.grounding_turns
     out: dict[str, Setting] = {}
     if g.method == "ungrounded":
-        return None, out
+        return out
     if g.method == "distribution-transformer" and g.transformer_ratio is None:
         checks.append(Check("warn", "grounding.transformer_ratio is missing: the resistor is sized as if it sat "
                                     "directly in the neutral."))
-    limit = None
-    if c0 is None:
-        checks.append(Check("warn", "No capacitance data (machine.stator_capacitance, grounding.circuit_capacitance, "
-                                    "grounding.system_capacitance): the grounding resistor cannot be sized and the "
-                                    "charging current is unknown."))
-    else:
-        limit = gnd.neutral_resistance_limit(c0, m.frequency)
-    installed = None
-    if g.resistor is not None:
-        installed = g.resistor * n * n
-    if installed is not None:
-        r_n, src, label = installed, "entered", "Grounding resistor as installed"
+    limit, r_n = basis.resistance_limit, basis.neutral_resistance
+    missing = basis.capacitance_missing
+    if basis.capacitance is None:
+        checks.append(Check("warn", "No capacitance data (" + _missing_text(missing) + "): the grounding resistor "
+                                    "cannot be sized or checked and the charging current is unknown."))
+    elif missing:
+        what = ("is sized" if basis.neutral_resistance_source == "standard" else "is checked")
+        checks.append(Check("warn", f"The grounding resistor {what} on part of the capacitance only "
+                                    f"({', '.join(basis.capacitance_parts)}); not given: {_missing_text(missing)}. "
+                                    f"The whole zone's capacitance is larger, so the resistor must be smaller than "
+                                    f"X_C0/3 = {limit:.4g} Ω found here."))
+    if r_n is None:
+        return out
+    if basis.neutral_resistance_source == "entered":
+        label = "Grounding resistor as installed"
         if limit is not None:
-            if installed <= limit * 1.0001:
-                checks.append(Check("ok", f"Installed resistor {installed:.4g} Ω (neutral-referred) is at most "
-                                          f"X_C0/3 = {limit:.4g} Ω: resistive current ≥ capacitive current."))
+            if r_n <= limit * 1.0001:
+                checks.append(Check("ok", f"Installed resistor {r_n:.4g} Ω (neutral-referred) is at most X_C0/3 = "
+                                          f"{limit:.4g} Ω: resistive current ≥ capacitive current."))
             else:
-                checks.append(Check("warn", f"Installed resistor {installed:.4g} Ω (neutral-referred) exceeds "
-                                            f"X_C0/3 = {limit:.4g} Ω: the resistive current is below the "
-                                            f"capacitive current and arcing faults can cause transient "
-                                            f"overvoltages; a resistor of at most {limit / n / n:.4g} Ω "
+                checks.append(Check("warn", f"Installed resistor {r_n:.4g} Ω (neutral-referred) exceeds X_C0/3 = "
+                                            f"{limit:.4g} Ω: the resistive current is below the capacitive current "
+                                            f"and arcing faults can cause transient overvoltages; a resistor of at "
+                                            f"most {limit / n / n:.4g} Ω "
                                             f"{'on the transformer secondary ' if n != 1 else ''}is advised."))
-    elif limit is not None:
-        r_n, src, label = limit, "standard", "Grounding resistor (R_N = X_C0/3)"
     else:
-        return None, out
-    out["grounding_resistor"] = Setting(r_n, "ohm", src, secondary=r_n / (n * n) if n != 1 else None,
+        label = "Grounding resistor (R_N = X_C0/3)"
+    out["grounding_resistor"] = Setting(r_n, "ohm", basis.neutral_resistance_source,
+                                        secondary=r_n / (n * n) if n != 1 else None,
                                         secondary_unit="ohm" if n != 1 else "", label=label,
                                         note="secondary: on the grounding transformer's secondary"
                                         if n != 1 else "in the neutral", keyed=False)
-    return r_n, out
+    return out
 
 
-def _derive_fault(ctx: StudyContext, r_n: float | None) -> None:
+def _derive_fault(ctx: StudyContext) -> None:
     basis, m = ctx.extras["generator"], ctx.case.machine
-    d, n = ctx.derived, _turns(ctx)
-    i_c = d["charging_current"].value if "charging_current" in d else None
+    d, n, r_n = ctx.derived, basis.grounding_turns, basis.neutral_resistance
     if r_n is None:
         return
+    i_c = d["charging_current"].value if "charging_current" in d else None
     i_r = gnd.resistor_current(m.rated_voltage, r_n)
     d["resistor_current"] = Setting(i_r, "A", "derived", secondary=i_r * n if n != 1 else None,
                                     secondary_unit="A" if n != 1 else "", label="Resistor current, terminal fault",
@@ -113,6 +122,23 @@ def _derive_fault(ctx: StudyContext, r_n: float | None) -> None:
                                    secondary_unit="V" if n != 1 else "", label="Neutral voltage, terminal fault")
 
 
+def _selectivity(basis, checks: list[Check]) -> None:
+    if basis.connection == "unit-transformer":
+        checks.append(Check("ok", "Unit-connected: the neutral voltage rises only for earth faults on the "
+                                  "generator, its bus and the step-up transformer's LV winding, so 59N is "
+                                  "selective."))
+    elif basis.connection == "bus":
+        checks.append(Check("warn", "Bus-connected: the neutral voltage rises for an earth fault anywhere on the "
+                                    "galvanically connected bus, so 59N is not selective; use it to alarm or as "
+                                    "time-graded backup, and find the faulted circuit with directional or "
+                                    "core-balance earth-fault elements on each circuit. 27TN is not applied: the "
+                                    "third-harmonic neutral voltage depends on the other machines on the bus."))
+    else:
+        checks.append(Check("warn", "The connection is not known (supply.connection): 59N is selective only on a "
+                                    "unit-connected machine; on a shared bus it sees earth faults anywhere on the "
+                                    "bus."))
+
+
 def neutral_overvoltage(ctx: StudyContext) -> FunctionSettings | None:
     """59N: fundamental neutral overvoltage for 95 % of the winding, with the grounding resistor sized."""
     case = ctx.case
@@ -120,8 +146,8 @@ def neutral_overvoltage(ctx: StudyContext) -> FunctionSettings | None:
         return None
     basis, m = ctx.extras["generator"], case.machine
     checks: list[Check] = []
-    r_n, values = _resistor(ctx, checks)
-    _derive_fault(ctx, r_n)
+    values = _resistor(ctx, checks)
+    _derive_fault(ctx)
     v_ln = basis.phase_voltage
     coverage, cov_src = ctx.choose("59N", "coverage", COVERAGE, "per_unit", "", "standard")
     if not 0.0 < coverage < 1.0:
@@ -145,7 +171,8 @@ def neutral_overvoltage(ctx: StudyContext) -> FunctionSettings | None:
     else:
         checks.append(Check("warn", f"59N covers only {coverage:.1%} of the winding from the terminals; 95 % is "
                                     f"usual."))
-    if m.third_harmonic_neutral_min is None or case.grounding.method == "ungrounded":
+    _selectivity(basis, checks)
+    if basis.connection != "bus" and (m.third_harmonic_neutral_min is None or case.grounding.method == "ungrounded"):
         checks.append(Check("warn", f"No third-harmonic data (machine.third_harmonic_neutral_min): 27TN is left "
                                     f"out and the {1 - coverage:.0%} of the winding nearest the neutral is "
                                     f"unprotected against earth faults."))
@@ -162,21 +189,23 @@ def neutral_overvoltage(ctx: StudyContext) -> FunctionSettings | None:
     values["time_delay"] = Setting(delay, "s", d_src, label="Time delay")
     sec = (lambda v: v) if ratio is None else ratio.to_secondary
     unit_note = "V" if ratio else "V (primary)"
-    tests = [timed_test_point("neutral voltage", sec(0.9 * pickup), unit_note, None, applied_primary=0.9 * pickup,
-                              primary_unit="V", description="90 % of pickup, fundamental: must not trip"),
-             timed_test_point("neutral voltage", sec(1.2 * pickup), unit_note, delay, applied_primary=1.2 * pickup,
-                              primary_unit="V", description="120 % of pickup: trips after the delay")]
+
+    def tp(v: float, expected, description: str, duration=None):
+        return timed_test_point("neutral voltage", sec(v), unit_note, expected, applied_primary=v, primary_unit="V",
+                                input="neutral", phases=single(sec(v)), description=description, duration=duration)
+
+    tests = [tp(0.9 * pickup, None, "90 % of pickup, fundamental: must not trip", hold_time(delay)),
+             tp(1.2 * pickup, delay, "120 % of pickup: trips after the delay")]
     for x in (0.05, 0.10, 0.50):
         v = gnd.neutral_voltage_for_fault(m.rated_voltage, x)
         if v > 1.1 * pickup:  # a simulated fault only where it trips beyond the relay's pickup tolerance
-            tests.append(timed_test_point("neutral voltage", sec(v), unit_note, delay, applied_primary=v,
-                                          primary_unit="V",
-                                          description=f"simulated fault {x:.0%} of the winding from the neutral"))
+            tests.append(tp(v, delay, f"simulated fault {x:.0%} of the winding from the neutral"))
+    why_delay = (" and earth faults on the step-up transformer's HV side coupled through its inter-winding "
+                 "capacitance (check the coupled voltage)" if basis.connection != "bus" else "")
     basis_text = (f"Neutral overvoltage at {1 - coverage:.0%} of the phase voltage ({pickup:.4g} V primary) covers "
                   f"{coverage:.0%} of the winding from the terminals. Delay {delay:g} s rides through VT secondary "
-                  f"fuse operation and earth faults on the step-up transformer's HV side coupled through its "
-                  f"inter-winding capacitance (check the coupled voltage).")
-    if r_n is not None and "grounding_resistor" in values and values["grounding_resistor"].source == "standard":
+                  f"fuse operation{why_delay}.")
+    if "grounding_resistor" in values and values["grounding_resistor"].source == "standard":
         basis_text += (" The resistor is the largest that keeps the resistive current at least equal to the "
                        "capacitive current (R_N ≤ X_C0/3), limiting transient overvoltages on arcing faults.")
     return FunctionSettings("59N", "Stator earth fault, neutral overvoltage (95 %)", values, basis_text,
@@ -185,18 +214,21 @@ def neutral_overvoltage(ctx: StudyContext) -> FunctionSettings | None:
 
 
 def third_harmonic(ctx: StudyContext) -> FunctionSettings | None:
-    """27TN: third-harmonic neutral undervoltage for the winding near the neutral (None without V3N data)."""
+    """27TN: third-harmonic neutral undervoltage for the winding near the neutral (None without V3N data or on a
+    shared bus)."""
     case = ctx.case
     m = case.machine
-    if case.grounding.method not in ("distribution-transformer", "high-resistance"):
+    basis = ctx.extras["generator"]
+    if case.grounding.method not in ("distribution-transformer", "high-resistance") or basis.connection == "bus":
         return None
     if m.third_harmonic_neutral_min is None:
         return None
     checks: list[Check] = []
     v3 = m.third_harmonic_neutral_min
     ratio, ratio_from = _neutral_ratio(ctx)
+    # rounded down: a lower pickup keeps the margin below the healthy V3N
     pickup, p_src = ctx.choose("27TN", "pickup_voltage", THIRD_HARMONIC_FRACTION * v3, "voltage", "V", "standard",
-                               via=ratio)
+                               via=ratio, rounding="down")
     delay, d_src = ctx.choose("27TN", "time_delay", THIRD_HARMONIC_DELAY, "time", "s", "common-practice")
     sup, s_src = ctx.choose("27TN", "supervision_voltage", SUPERVISION_VOLTAGE * m.rated_voltage, "voltage", "V",
                             "common-practice")
@@ -221,16 +253,22 @@ def third_harmonic(ctx: StudyContext) -> FunctionSettings | None:
     }
     sec = (lambda v: v) if ratio is None else ratio.to_secondary
     unit_note = "V" if ratio else "V (primary)"
-    tests = [timed_test_point("third-harmonic neutral voltage", sec(0.8 * pickup), unit_note, delay,
-                              applied_primary=0.8 * pickup, primary_unit="V", initial_state="terminal voltage rated",
-                              description="80 % of pickup at 3f with rated terminal voltage: trips"),
-             timed_test_point("third-harmonic neutral voltage", sec(1.2 * pickup), unit_note, None,
-                              applied_primary=1.2 * pickup, primary_unit="V", initial_state="terminal voltage rated",
-                              description="120 % of pickup: must not trip"),
-             timed_test_point("third-harmonic neutral voltage", sec(0.5 * pickup), unit_note, None,
-                              applied_primary=0.5 * pickup, primary_unit="V",
-                              initial_state="terminal voltage below supervision",
-                              description="supervision blocks below the terminal-voltage threshold")]
+    v_rated = basis.rated_secondary_voltage
+    v_low = None if vt is None else vt.to_secondary(0.9 * sup / 3 ** 0.5)
+
+    def tp(v: float, expected, terminal, state: str, description: str, duration=None):
+        return timed_test_point("third-harmonic neutral voltage", sec(v), unit_note, expected, applied_primary=v,
+                                primary_unit="V", input="neutral", phases=single(sec(v)),
+                                frequency=3.0 * m.frequency, initial_state=state,
+                                voltage_phases=None if terminal is None else balanced(terminal),
+                                description=description, duration=duration)
+
+    tests = [tp(0.8 * pickup, delay, v_rated, "terminal voltage rated",
+                "80 % of pickup at 3f with rated terminal voltage: trips"),
+             tp(1.2 * pickup, None, v_rated, "terminal voltage rated", "120 % of pickup: must not trip",
+                hold_time(delay)),
+             tp(0.5 * pickup, None, v_low, "terminal voltage below supervision",
+                "supervision blocks below the terminal-voltage threshold", hold_time(delay))]
     basis_text = (f"Third-harmonic neutral undervoltage at {THIRD_HARMONIC_FRACTION:.0%} of the lowest healthy V3N "
                   f"measured over the load range ({v3:.4g} V) detects faults near the neutral, where 59N is blind; "
                   f"enabled only above {sup / m.rated_voltage:.0%} terminal voltage so that it does not trip a "
@@ -238,6 +276,20 @@ def third_harmonic(ctx: StudyContext) -> FunctionSettings | None:
     return FunctionSettings("27TN", "Stator earth fault, third-harmonic neutral undervoltage (100 %)", values,
                             basis_text, references=["IEEE C37.101", "IEEE C37.102"], checks=checks,
                             test_points=tests)
+
+
+def neutral_ct(ctx: StudyContext) -> tuple[Ratio, str, str]:
+    """The CT a generator's neutral overcurrent measures through, the relay input and a note:
+    the neutral CT; else a core-balance CT at the terminals; else the residual of the phase CTs."""
+    ins, basis = ctx.case.instruments, ctx.extras["generator"]
+    if ins.neutral_ct is not None:
+        return ins.neutral_ct, "neutral", ""
+    if ins.ground_ct is not None:
+        return ins.ground_ct, "ground", ("No neutral CT (instruments.neutral_ct): the element is set on the "
+                                         "core-balance CT at the terminals (instruments.ground_ct), which carries the "
+                                         "system's contribution to an internal fault rather than the neutral current.")
+    return basis.ct, "phase", ("No neutral CT (instruments.neutral_ct): the element is set on the residual of the "
+                               "phase CTs, which limits its sensitivity; a neutral CT also allows 87N.")
 
 
 def neutral_overcurrent(ctx: StudyContext) -> FunctionSettings | None:
@@ -248,11 +300,9 @@ def neutral_overcurrent(ctx: StudyContext) -> FunctionSettings | None:
         return None
     basis = ctx.extras["generator"]
     checks: list[Check] = []
-    ct = case.instruments.ground_ct
-    if ct is None:
-        ct = basis.ct
-        checks.append(Check("warn", "No neutral CT (instruments.ground_ct): the element is set on the residual of "
-                                    "the phase CTs, which limits its sensitivity."))
+    ct, channel, ct_note = neutral_ct(ctx)
+    if ct_note:
+        checks.append(Check("warn", ct_note))
     if g.fault_current_limit is not None:
         i_g, ig_note = g.fault_current_limit, "grounding.fault_current_limit"
     else:
@@ -260,8 +310,9 @@ def neutral_overcurrent(ctx: StudyContext) -> FunctionSettings | None:
         checks.append(Check("warn", "No earth-fault current limit (grounding.fault_current_limit): pickup set from "
                                     "the rated current; coverage of the winding cannot be judged."))
     curve = "IEEE-VI" if case.study.practice == "IEEE" else "IEC-VI"
+    # rounded down: a lower pickup keeps the coverage
     pickup, p_src = ctx.choose("51N", "pickup_current", NEUTRAL_OC_FRACTION * i_g, "current", "A", "common-practice",
-                               via=ct)
+                               via=ct, rounding="down")
     curve, c_src = ctx.choose("51N", "curve", curve, "text", "", "standard")
     if curve not in CURVES:
         raise InputError("overrides.51N.curve", f"expected one of {', '.join(CURVES)}, got {curve!r}")
@@ -277,9 +328,12 @@ def neutral_overcurrent(ctx: StudyContext) -> FunctionSettings | None:
         checks.append(Check("ok", f"51N covers {coverage:.0%} of the winding from the terminals ({ig_note})."))
     else:
         checks.append(Check("warn", f"51N covers only {coverage:.0%} of the winding from the terminals; lower the "
-                                    f"pickup or add a restricted earth-fault element."))
-    checks.append(Check("ok", "Coordinate the 51N time and the 50N delay with the slowest feeder earth-fault "
-                              "protection (grading margin 0.2–0.4 s)."))
+                                    f"pickup or add a restricted earth-fault element (87N)."))
+    if hs <= pickup:
+        checks.append(Check("warn", f"The definite-time stage {hs:.4g} A is not above the inverse stage's pickup "
+                                    f"{pickup:.4g} A."))
+    checks.append(Check("ok", "51N sees earth faults anywhere on the galvanically connected system: grade its time "
+                              "and the 50N delay above the slowest feeder earth-fault protection (margin 0.2–0.4 s)."))
     values = {
         "pickup_current": current_setting(pickup, ct, p_src, "51N pickup",
                                           f"{pickup / i_g:.0%} of the earth-fault current"),
@@ -287,18 +341,35 @@ def neutral_overcurrent(ctx: StudyContext) -> FunctionSettings | None:
         mult_key: Setting(tms, "", t_src, label="Time dial" if mult_key == "time_dial" else "Time multiplier",
                           note=f"{NEUTRAL_OC_TARGET:g} s at the full earth-fault current" if t_src != "override"
                           else ""),
-        "coverage": Setting(coverage, "pu", "derived", label="Winding covered from the terminals"),
+        "coverage": Setting(coverage, "pu", "derived", label="Winding covered from the terminals", keyed=False),
         "definite_pickup_current": current_setting(hs, ct, hs_src, "50N definite-time pickup"),
         "definite_time_delay": Setting(hsd, "s", hsd_src, label="50N delay"),
     }
-    tests = []
+
+    def operate(i_a: float) -> float | None:
+        times = []
+        if i_a > pickup:
+            times.append(inverse_operate_time(i_a / pickup, curve, tms))
+        if i_a > hs:
+            times.append(hsd)
+        return min(times) if times else None
+
+    tests = [timed_test_point("neutral current", ct.to_secondary(0.9 * pickup), "A", None,
+                              applied_primary=0.9 * pickup, primary_unit="A", input=channel,
+                              phases=single(ct.to_secondary(0.9 * pickup)),
+                              description="51N at 90 % of pickup: must not operate",
+                              duration=hold_time(inverse_operate_time(1.1, curve, tms)))]
     for mult in (2.0, 5.0, 10.0):
         i_a = mult * pickup
-        tests.append(timed_test_point("neutral current", ct.to_secondary(i_a), "A",
-                                      inverse_operate_time(mult, curve, tms), applied_primary=i_a,
-                                      primary_unit="A", description=f"51N at {mult:g} × pickup"))
-    tests.append(timed_test_point("neutral current", ct.to_secondary(1.2 * hs), "A", hsd, applied_primary=1.2 * hs,
-                                  primary_unit="A", description="50N at 120 % of its pickup"))
+        t = operate(i_a)
+        stage = "50N" if i_a > hs and hsd <= inverse_operate_time(mult, curve, tms) else "51N"
+        tests.append(timed_test_point("neutral current", ct.to_secondary(i_a), "A", t, applied_primary=i_a,
+                                      primary_unit="A", input=channel, phases=single(ct.to_secondary(i_a)),
+                                      description=f"{mult:g} × the 51N pickup ({stage} operates first)"))
+    i_a = 1.2 * hs
+    tests.append(timed_test_point("neutral current", ct.to_secondary(i_a), "A", operate(i_a), applied_primary=i_a,
+                                  primary_unit="A", input=channel, phases=single(ct.to_secondary(i_a)),
+                                  description="120 % of the 50N pickup (the faster of 50N and 51N)"))
     basis_text = (f"Neutral overcurrent at {pickup / i_g:.0%} of the available earth-fault current ({i_g:.4g} A, "
                   f"{ig_note}) covers {coverage:.0%} of the winding; {curve_constants(curve).name} with "
                   f"{NEUTRAL_OC_TARGET:g} s at the full fault current; a definite-time stage at "

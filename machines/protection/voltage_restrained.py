@@ -10,19 +10,22 @@ shows a setting that fails it).
 from __future__ import annotations
 
 from machines.errors import InputError
-from machines.protection.base import StudyContext, current_setting, timed_test_point
+from machines.protection.backup_distance import proposed_reach
+from machines.protection.base import StudyContext, balanced, current_setting, timed_test_point
+from machines.protection.generator_injection import hold_time
 from machines.record import Check, FunctionSettings, Setting
 from machines.standards.generator_capability import restrained_pickup
 from machines.standards.inverse_time import CURVES, curve_constants, inverse_operate_time, time_multiplier_for
 
 FID = "51V"
 PICKUP = 1.5  #: [pu of rated current] at rated voltage (METHODS.md §9.4, IEEE C37.102; value from memory)
-FLOOR = 0.25  #: restraint floor, fraction of the pickup (METHODS.md §9.4, Gers & Holmes §5.8)
+FLOOR = 0.25  #: restraint floor, fraction of the pickup (METHODS.md §9.4; Gers & Holmes, section from memory)
 TARGET_TIME = 1.0  #: [s] at the transient terminal-fault current, fully restrained (common practice)
 MARGIN = 2.0  #: sustained fault current ≥ 2 × restrained pickup (METHODS.md §9.4 [derived])
 CHECK_VOLTAGE = 0.0  #: [pu] terminal voltage of the fault checked: a terminal fault (restraint at its floor)
 MIN_PICKUP = 1.25  #: [pu] below this the element may trip on overload near rated voltage (common practice)
 TEST_MULTIPLES = (2.0, 3.0, 5.0)
+FAULT_ANGLE = 80.0  #: [degrees] the test currents lag the voltage like a fault current (any angle will do)
 
 
 def sustained_reach(pickup_pu: float, floor: float, xd: float) -> float:
@@ -53,7 +56,8 @@ def settings(ctx: StudyContext) -> FunctionSettings:
     basis, case = ctx.extras["generator"], ctx.case
     ir, ct = basis.rated_current, basis.ct
     checks: list[Check] = []
-    pickup, p_src = ctx.choose(FID, "pickup_current", PICKUP * ir, "current", "A", "standard")
+    # rounded down: a lower pickup keeps the margin below the sustained fault current
+    pickup, p_src = ctx.choose(FID, "pickup_current", PICKUP * ir, "current", "A", "standard", rounding="down")
     floor, f_src = ctx.choose(FID, "restraint_floor", FLOOR, "per_unit", "", "standard")
     if not 0.0 < floor <= 1.0:
         raise InputError("overrides.51V.restraint_floor", f"expected a fraction of the pickup from 0 to 1, got "
@@ -67,11 +71,15 @@ def settings(ctx: StudyContext) -> FunctionSettings:
     m_target = basis.transient_fault_current / (floor * pickup)
     tms0 = time_multiplier_for(TARGET_TIME, m_target, curve) if m_target > 1.0 else 1.0
     tms, t_src = ctx.choose(FID, key, tms0, "per_unit", "", "common-practice")
-    v_check, v_src = ctx.choose(FID, "check_voltage", CHECK_VOLTAGE, "per_unit", "", "common-practice")
-
+    # a study assumption, not a relay setting: it goes to the derived values
+    v_check, _ = ctx.choose(FID, "check_voltage", CHECK_VOLTAGE, "per_unit", "", "common-practice")
+    ctx.steps.pop((FID, "check_voltage"), None)
     if not 0.0 <= v_check < 1.0:
         raise InputError("overrides.51V.check_voltage", f"expected a terminal voltage during the fault from 0 to "
                                                         f"below 1 pu, got {v_check:g}")
+    ctx.derived["voltage_restrained_check_voltage"] = Setting(
+        v_check, "pu", "override" if case.override(f"{FID}.check_voltage") else "common-practice",
+        label="51V check: terminal voltage during the fault", note="study assumption, not a relay setting")
     i_sus = basis.sustained_fault_current
     # A fault that leaves V at the terminals is fed through X_d by E = 1 pu: I = (1 − V)/X_d (reactive circuit);
     # at a terminal fault (V = 0) this is E/X_d.
@@ -82,8 +90,12 @@ def settings(ctx: StudyContext) -> FunctionSettings:
           f"(1 − V)·E/X_d = {i_fault:.4g} A (E/X_d = {i_sus:.4g} A at a terminal fault)")
     text = (f"At {v_check:.2g} pu terminal voltage the restrained pickup is {p_fault:.4g} A; the sustained fault "
             f"current without field forcing is {at}, ratio {ratio:.3g}")
-    if ratio >= MARGIN:
+    static = basis.excitation == "static"
+    inadequate: list[str] = []
+    if ratio >= MARGIN and not static:
         checks.append(Check("ok", text + f" ≥ {MARGIN:g}."))
+    elif ratio >= MARGIN:
+        checks.append(Check("warn", text + f" ≥ {MARGIN:g}, but only while the field is held."))
     elif ratio > 1.0:
         checks.append(Check("warn", text + f", less than the margin {MARGIN:g}: operation for a sustained fault "
                                            f"relies on field forcing or the transient current; confirm the exciter."))
@@ -91,11 +103,23 @@ def settings(ctx: StudyContext) -> FunctionSettings:
         checks.append(Check("fail", text + ": the pickup is above the sustained fault current, so the element "
                                            "would not operate for a sustained fault; lower the pickup, use "
                                            "voltage-controlled mode, or show that the exciter forces the field."))
+        inadequate.append("the restrained pickup is above the sustained fault current")
+    if static:
+        reach, how = proposed_reach(basis, case.machine.power_factor)
+        checks.append(Check("warn", "Static exciter fed from the generator terminals: during a close-in fault the "
+                                    "terminal voltage, and with it the field supply, collapses, so the fault current "
+                                    "decays from E/X'd well below E/X_d and the 51V may reset before it times out. "
+                                    "Use voltage-controlled overcurrent (pickup below rated current, enabled only "
+                                    f"below about 0.8 pu voltage) or the 21 backup set in this study (mho reach "
+                                    f"{reach:.4g} Ω primary, {how}), unless the maker shows the exciter sustains "
+                                    f"the fault current (field forcing from a separate or compounded supply)."))
+        inadequate.append("the static exciter does not sustain the fault current")
+    elif basis.excitation is None:
+        checks.append(Check("warn", "The exciter is not known (machine.excitation): with a static exciter fed from "
+                                    "the terminals the sustained current decays below E/X_d and this element may not "
+                                    "operate; the 21 backup is the alternative."))
     reach = sustained_reach(pickup / ir, floor, ctx.case.machine.xd)
-    if reach > 0.0:
-        checks.append(Check("ok", f"Without field forcing the sustained current exceeds the restrained pickup for "
-                                  f"three-phase faults behind up to {reach:.3g} pu of external reactance (machine "
-                                  f"base); a step-up transformer is typically 0.08–0.15 pu."))
+    inadequate += _reach_check(basis, reach, checks)
     if pickup < MIN_PICKUP * ir:
         checks.append(Check("warn", f"Pickup {pickup / ir:.3g} pu at rated voltage is below {MIN_PICKUP:g} pu: the "
                                     f"element may trip on overload at near-rated voltage."))
@@ -106,6 +130,7 @@ def settings(ctx: StudyContext) -> FunctionSettings:
     checks.append(Check("ok", "Coordinate the operate time with the slowest downstream backup protection (grading "
                               "margin 0.2–0.4 s); the time multiplier here gives "
                               f"{TARGET_TIME:g} s at the transient terminal-fault current."))
+    ctx.extras["backup_shortfall"] = inadequate
     values = {
         "pickup_current": current_setting(pickup, ct, p_src, "Pickup at rated voltage",
                                           f"{pickup / ir:.3g} pu of rated current"),
@@ -115,26 +140,74 @@ def settings(ctx: StudyContext) -> FunctionSettings:
                      else ""),
         "restraint_floor": Setting(floor, "pu", f_src, label="Restraint floor (fraction of pickup)",
                                    note="pickup × V/V_rated, not below this"),
-        "check_voltage": Setting(v_check, "pu", v_src, label="Fault voltage for the decrement check",
-                                 note="study assumption, not a relay setting"),
     }
-    tests = []
-    for mult in TEST_MULTIPLES:
-        i_a = mult * pickup
-        tests.append(timed_test_point("phase current", ct.to_secondary(i_a), "A",
-                                      inverse_operate_time(mult, curve, tms), applied_primary=i_a,
-                                      primary_unit="A", initial_state="rated voltage applied",
-                                      description=f"{mult:g} × pickup at rated voltage"))
-    half = restrained_pickup(pickup, 0.5, floor)
-    tests.append(timed_test_point("phase current", ct.to_secondary(2.0 * half), "A",
-                                  inverse_operate_time(2.0, curve, tms), applied_primary=2.0 * half,
-                                  primary_unit="A", initial_state="50 % voltage applied",
-                                  description="2 × the restrained pickup at 50 % voltage"))
+    tests = _tests(basis, pickup, floor, curve, tms)
     basis_text = (f"Voltage-restrained overcurrent, {pickup / ir:.3g} pu at rated voltage, pickup proportional to "
                   f"voltage down to {floor:.0%} of the setting; {constants.name} with the time multiplier giving "
                   f"{TARGET_TIME:g} s at the transient terminal-fault current. Checked against the sustained fault "
-                  f"current E/X_d (no field forcing) with margin {MARGIN:g}.")
+                  f"current E/X_d (no field forcing) with margin {MARGIN:g}. Blocked, or switched to its unrestrained "
+                  f"pickup, on loss of potential (60): a lost VT would otherwise restrain it to its floor.")
     return FunctionSettings(FID, "Voltage-restrained overcurrent", values, basis_text,
                             references=["IEEE C37.102", "Gers & Holmes, Protection of Electricity Distribution "
-                                        "Networks §5.8", "IEEE C37.112", "IEC 60255-151"],
+                                        "Networks (linear restraint; section number from memory)", "IEEE C37.112",
+                                        "IEC 60255-151"],
                             checks=checks, test_points=tests)
+
+
+#: step-up transformer reactances usually met, pu on their own rating (common practice, no published source)
+TYPICAL_TRANSFORMER = (0.08, 0.15)
+
+
+def _reach_check(basis, reach: float, checks: list[Check]) -> list[str]:
+    """How far behind the terminals a three-phase fault still drives a sustained current above the restrained
+    pickup, against the step-up transformer; the shortfalls (for the 21)."""
+    if reach <= 0.0:
+        return []
+    head = (f"Without field forcing the sustained current exceeds the restrained pickup for three-phase faults "
+            f"behind up to {reach:.3g} pu of external reactance (machine base)")
+    if basis.unit_connected and basis.x_transformer is not None:
+        if reach >= basis.x_transformer:
+            checks.append(Check("ok", head + f": beyond the step-up transformer ({basis.x_transformer:.3g} pu), so "
+                                             f"faults on its HV side are backed up."))
+            return []
+        checks.append(Check("warn", head + f", less than the step-up transformer's {basis.x_transformer:.3g} pu: "
+                                           f"sustained faults on its HV side are not backed up; use the 21."))
+        return ["it does not reach through the step-up transformer"]
+    if basis.unit_connected:
+        lo, hi = TYPICAL_TRANSFORMER
+        if reach >= hi:
+            checks.append(Check("ok", head + f", beyond a typical step-up transformer ({lo:g}–{hi:g} pu); enter "
+                                             f"supply.transformer_impedance to confirm."))
+            return []
+        checks.append(Check("warn", head + f", not beyond a typical step-up transformer ({lo:g}–{hi:g} pu): "
+                                           f"sustained faults on its HV side may not be backed up; enter "
+                                           f"supply.transformer_impedance, or use the 21."))
+        return ["it may not reach through the step-up transformer"]
+    checks.append(Check("ok", head + ": faults further out are not seen once the current has decayed."))
+    return []
+
+
+def _tests(basis, pickup: float, floor: float, curve: str, tms: float) -> list:
+    ct = basis.ct
+    v_rated = basis.rated_secondary_voltage
+    tests = []
+
+    def tp(i_a: float, v_pu: float, description: str):
+        volts = None if v_rated is None else balanced(v_pu * v_rated)
+        m_eff = i_a / restrained_pickup(pickup, v_pu, floor)
+        return timed_test_point("phase current", ct.to_secondary(i_a), "A", inverse_operate_time(m_eff, curve, tms),
+                                applied_primary=i_a, primary_unit="A", initial_state=f"{v_pu:.0%} voltage applied",
+                                phases=balanced(ct.to_secondary(i_a), -FAULT_ANGLE), voltage_phases=volts,
+                                description=description)
+
+    for mult in TEST_MULTIPLES:
+        tests.append(tp(mult * pickup, 1.0, f"{mult:g} × pickup at rated voltage"))
+    tests.append(tp(2.0 * restrained_pickup(pickup, 0.5, floor), 0.5, "2 × the restrained pickup at 50 % voltage"))
+    i_hold = 0.9 * pickup
+    tests.append(timed_test_point("phase current", ct.to_secondary(i_hold), "A", None, applied_primary=i_hold,
+                                  primary_unit="A", initial_state="100% voltage applied",
+                                  phases=balanced(ct.to_secondary(i_hold), -FAULT_ANGLE),
+                                  voltage_phases=None if v_rated is None else balanced(v_rated),
+                                  description="90 % of pickup at rated voltage: must not operate",
+                                  duration=hold_time(inverse_operate_time(1.1, curve, tms))))
+    return tests

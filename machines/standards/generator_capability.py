@@ -44,19 +44,49 @@ def armature_capability_product(current: float, time: float) -> float:
     return (current * current - 1.0) * time
 
 
-def armature_capability_constant(practice: str) -> float:
-    """The (I² − 1)·t the standard's short-time points allow: the smallest product of its points [s].
+def armature_capability_constant(practice: str, points=None) -> float:
+    """The (I² − 1)·t the short-time points allow: the smallest product of the points [s].
+
+    ``points`` are (I [pu], t [s]) pairs; without them, the points of ``practice`` (C50.13 for IEEE, IEC 60034-1).
 
     >>> round(armature_capability_constant("IEEE"), 2)
     41.08
     >>> armature_capability_constant("IEC")
     37.5
     """
-    try:
-        points = ARMATURE_POINTS[practice]
-    except KeyError:
-        raise InputError("study.practice", f"expected IEC or IEEE, got {practice!r}") from None
+    if points is None:
+        try:
+            points = ARMATURE_POINTS[practice]
+        except KeyError:
+            raise InputError("study.practice", f"expected IEC or IEEE, got {practice!r}") from None
     return min(armature_capability_product(i, t) for i, t in points)
+
+
+#: Scope of IEEE C50.13 (cylindrical-rotor generators from 10 MVA) [VA] (value from memory).
+C50_13_SMALLEST = 10e6
+
+
+def armature_points(practice: str, rotor: str, rated_apparent_power: float) -> tuple[tuple, str]:
+    """The armature short-time capability points that apply to a machine, and where they come from.
+
+    IEEE C50.13 gives the curve for cylindrical-rotor generators from 10 MVA; its curve is not applied to
+    salient-pole machines. IEC 60034-1's occasional excess current (1.5 × rated for 30 s) applies to every AC
+    generator up to 1200 MVA, whatever the rotor, so it is the reference wherever C50.13 does not apply
+    (values and scopes from memory; METHODS.md §10).
+
+    >>> armature_points("IEEE", "cylindrical-indirect", 100e6)[1]
+    'IEEE C50.13 armature short-time capability (value from memory)'
+    >>> armature_points("IEEE", "salient-with-damper", 2.5e6)[0]
+    ((1.5, 30.0),)
+    """
+    if practice not in ARMATURE_POINTS:
+        raise InputError("study.practice", f"expected IEC or IEEE, got {practice!r}")
+    if practice == "IEEE" and rotor.startswith("cylindrical") and rated_apparent_power >= C50_13_SMALLEST:
+        return C50_13_ARMATURE_POINTS, "IEEE C50.13 armature short-time capability (value from memory)"
+    why = ("" if practice == "IEC" else
+           " (the IEEE C50.13 curve is for cylindrical rotors, not salient poles)" if rotor.startswith("salient") else " (IEEE C50.13 covers cylindrical rotors from 10 MVA)")
+    return IEC_60034_ARMATURE_POINTS, ("IEC 60034-1 occasional excess current, 1.5 × rated for 30 s (value from "
+                                       "memory)" + why)
 
 
 def armature_capability_time(current: float, constant: float) -> float:
@@ -228,7 +258,8 @@ def restrained_pickup(pickup_at_rated_voltage: float, voltage: float, floor: flo
 
     References
     ----------
-    Gers & Holmes, Protection of Electricity Distribution Networks, §5.8 (linear restraint to 25 %); METHODS.md §9.4.
+    Gers & Holmes, Protection of Electricity Distribution Networks (linear restraint to 25 %; section number from
+    memory); METHODS.md §9.4.
 
     Examples
     --------
@@ -240,24 +271,27 @@ def restrained_pickup(pickup_at_rated_voltage: float, voltage: float, floor: flo
 
 # ---------------------------------------------------------------------------------------------------- reverse power
 
-#: Power that motors a unit at synchronous speed, fraction of rated kW: (lowest, typical), by prime mover.
-#: Blackburn & Domin, Protective Relaying, generator protection chapter (attribution inferred); METHODS.md §9.1.
-#: The typical values are those of METHODS.md §9.6; the lowest are the bottoms of the handbook ranges (steam 1 %,
-#: hydro 0.2 %, diesel 5 %), except the gas turbine's 10 %, which stands for two-shaft and aeroderivative units
-#: the handbook only calls "much less" than 50 % (common practice, no published source).
+#: Power that motors a unit at synchronous speed with its prime mover shut down, fraction of rated kW: (lowest,
+#: highest) of the range for the prime mover. IEEE C37.102, table of motoring power by prime mover (values from
+#: memory): steam turbines about 1–3 %, hydraulic turbines 0.2–2 % and more, reciprocating engines 5–25 % (the
+#: handbooks' diesel range), gas turbines from about 10 % (two-shaft) to 100 % (single-shaft); METHODS.md §9.1.
 MOTORING_POWER: dict[str, tuple[float, float]] = {
-    "steam-turbine": (0.01, 0.02),
-    "hydro": (0.002, 0.01),
+    "steam-turbine": (0.01, 0.03),
+    "hydro": (0.002, 0.02),
     "reciprocating-engine": (0.05, 0.25),
-    "gas-turbine": (0.10, 0.50),
+    "gas-turbine": (0.10, 1.00),
 }
 
 
 def motoring_power_fraction(prime_mover: str) -> tuple[float, float]:
-    """(lowest, typical) motoring power of a prime mover, fraction of rated active power [-].
+    """(lowest, highest) motoring power of a prime mover, fraction of rated active power [-].
 
-    >>> motoring_power_fraction("gas-turbine")
-    (0.1, 0.5)
+    References
+    ----------
+    IEEE C37.102, motoring power by prime mover (values from memory); METHODS.md §9.1.
+
+    >>> motoring_power_fraction("reciprocating-engine")
+    (0.05, 0.25)
     """
     try:
         return MOTORING_POWER[prime_mover]

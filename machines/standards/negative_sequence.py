@@ -89,7 +89,8 @@ def c50_13_direct_continuous(rated_apparent_power: float) -> float:
 
     References
     ----------
-    IEEE C50.13-2005, permissible unbalanced currents (value from memory, lower confidence); METHODS.md §6.1, 6.4.
+    IEEE C50.13-2005 (a superseded edition; value from memory, lower confidence), permissible unbalanced currents;
+    METHODS.md §6.1, 6.4.
 
     Examples
     --------
@@ -171,12 +172,19 @@ def table_capability(practice: str, rotor: str, rated_apparent_power: float) -> 
     40.0
     >>> round(table_capability("IEEE", "cylindrical-direct", 1000e6).k, 3)
     8.75
+    >>> table_capability("IEEE", "salient-with-damper", 0.6e6).k   # below C50.12's scope: IEC 60034-1's row
+    20.0
     """
+    if practice == "IEEE" and rated_apparent_power < _scope_floor(rotor):
+        iec = table_capability("IEC", rotor, rated_apparent_power)
+        family = "C50.12" if rotor.startswith("salient") else "C50.13"
+        return UnbalanceCapability(iec.continuous, iec.k, iec.reference + f"; IEEE {family} covers machines from "
+                                   f"{_scope_floor(rotor) / 1e6:g} MVA (value from memory)", iec.note)
     if rotor == "cylindrical-direct":
         if practice == "IEEE":
             return UnbalanceCapability(c50_13_direct_continuous(rated_apparent_power),
                                        c50_13_direct_k(rated_apparent_power), _C50_13 + "; continuous I2 by "
-                                       "C50.13-2005", "cylindrical rotor, directly cooled")
+                                       "C50.13-2005, a superseded edition", "cylindrical rotor, directly cooled")
         if practice == "IEC":
             return UnbalanceCapability(iec_direct_continuous(rated_apparent_power),
                                        iec_direct_k(rated_apparent_power), _IEC, "cylindrical rotor, directly "
@@ -187,6 +195,16 @@ def table_capability(practice: str, rotor: str, rated_apparent_power: float) -> 
                                           f"({', '.join(sorted({r for p, r in FIXED_ROWS if p == practice}))}, "
                                           f"cylindrical-direct), got {rotor!r}")
     return UnbalanceCapability(*row)
+
+
+#: Smallest ratings IEEE C50.12 (salient pole, for hydraulic turbines) and C50.13 (cylindrical rotor) cover [VA]
+#: (values from memory); below them the IEC 60034-1 table, which has no lower limit, is used.
+C50_12_SMALLEST = 5e6
+C50_13_SMALLEST = 10e6
+
+
+def _scope_floor(rotor: str) -> float:
+    return C50_12_SMALLEST if rotor.startswith("salient") else C50_13_SMALLEST
 
 
 def negative_sequence_trip_time(negative_sequence_current: float, k: float) -> float:
