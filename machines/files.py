@@ -142,6 +142,8 @@ def parse_value(spec: FieldSpec, raw: Any, key: str, *, rated_current: float | N
 
 def _check_range(spec: FieldSpec, value: float, key: str, si_unit: str) -> None:
     lo, hi = spec.lo, spec.hi
+    if spec.allow_zero and value == 0:
+        return
     if (lo is not None and value < lo) or (hi is not None and value > hi):
         unit = spec.unit if spec.kind != "current_or_pu" else "A"
         got = _show(value, si_unit, unit)

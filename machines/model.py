@@ -612,15 +612,15 @@ class Grounding:
     transformer_ratio: Ratio | None = spec("ratio", "V", help="grounding transformer, e.g. '13800/240 V'")
     resistor: float | None = spec("impedance", "ohm", lo=1e-3, hi=1e6, help="grounding resistor as installed")
     surge_capacitance: float | None = spec(
-        "capacitance", "uF", lo=0.0, hi=1e-4, allow_zero=True,
+        "capacitance", "uF", lo=1e-10, hi=1e-4, allow_zero=True,
         help="generators: surge capacitors per phase to ground (0 uF when none are fitted)"
     )
     bus_capacitance: float | None = spec(
-        "capacitance", "uF", lo=0.0, hi=1e-3, allow_zero=True,
+        "capacitance", "uF", lo=1e-10, hi=1e-3, allow_zero=True,
         help="generators: the generator's bus (isolated-phase bus or cables) per phase to ground"
     )
     transformer_capacitance: float | None = spec(
-        "capacitance", "uF", lo=0.0, hi=1e-4, allow_zero=True,
+        "capacitance", "uF", lo=1e-10, hi=1e-4, allow_zero=True,
         help="generators: the step-up transformer's LV winding per phase to ground"
     )
 

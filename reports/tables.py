@@ -43,6 +43,8 @@ CHOICE_WORD = {
     "breaker": "circuit breaker", "fused-contactor": "fused contactor",
     "quadratic": "quadratic (centrifugal pump, fan)", "constant": "constant", "linear": "linear",
     "trip": "trip", "alarm": "alarm", "IEC": "IEC", "IEEE": "IEEE",
+    "static": "static (fed from the terminals)", "brushless": "brushless", "rotating-dc": "rotating DC exciter",
+    "unit-transformer": "unit-connected (own step-up transformer)", "bus": "bus-connected",
 }
 #: machine-file keys whose words alone would not say what the trade calls them
 KEY_WORD = {
@@ -533,6 +535,10 @@ def keying_setup(record) -> list[tuple[str, str]]:
     return rows
 
 
+#: functions that supervise others (block them inside the relay) rather than trip
+SUPERVISION_IDS = ("60",)
+
+
 def function_outputs(f) -> tuple[str, str]:
     """(trip output, outputs text) of a function: the proposal stated in :data:`OUTPUTS_NOTE`."""
     if not f.enabled:
@@ -540,6 +546,8 @@ def function_outputs(f) -> tuple[str, str]:
     action = f.settings.get("action")
     if f.id == "66":
         return OUT_INHIBIT, OUT_INHIBIT
+    if f.id in SUPERVISION_IDS:  # blocks other elements inside the relay and alarms; trips nothing itself
+        return "", f"{OUT_ALARM}; blocks the listed elements inside the relay"
     if action is not None and action.value == "alarm":
         return OUT_ALARM, OUT_ALARM
     trip = f"{OUT_TRIP} + {OUT_LOCKOUT}" if f.id.startswith("87") else OUT_TRIP
@@ -557,7 +565,8 @@ def keying_list(record) -> list[KeyFunction]:
             if not is_setting(s) or key == "enabled":
                 continue
             label = printed_label(key, s.to_json())
-            output = "" if not f.enabled else OUT_ALARM if "alarm" in key else trip
+            output = ("" if not f.enabled else OUT_ALARM if "alarm" in key else
+                      "blocking (internal)" if f.id in SUPERVISION_IDS else trip)
             if _is_stages(s.value):
                 for n, stage in enumerate(s.value, start=1):
                     rows.append(KeyRow(f"{_stage_label(label)} {n}", stage_text(stage), "", output, key))

@@ -192,7 +192,12 @@ def _main_group(tp: dict, system: System) -> Group:
     """The channels of the test point's ``phases``, by its ``input`` and ``applied_unit``."""
     unit, inp = tp.get("applied_unit"), tp.get("input") or "phase"
     if unit not in ("A", "V"):
-        raise NoWaveform("record", f"phases are given in {unit or 'no unit'}; expected amperes or volts")
+        # a test of a power, an impedance or a ratio: ``phases`` are the phase currents that, with the test's
+        # ``voltage_phases``, make the quantity under test (the settings record's convention)
+        if inp != "phase" or tp.get("voltage_phases") is None:
+            raise NoWaveform("record", f"phases are given for a test in {unit or 'no unit'} without the voltages "
+                                       "that go with them")
+        unit = "A"
     if inp == "phase":
         return (_group("I", "A", ("IA", "IB", "IC"), system, ("phase_ct",)) if unit == "A" else
                 _group("V", "V", ("VA", "VB", "VC"), system, ("vt",)))

@@ -72,8 +72,9 @@ def _system(draw, data: dict, f: float, s_mva: float) -> None:
     if grounding["method"] != "low-resistance":
         for key, lo, hi in (("surge_capacitance", 0.0, 0.5), ("bus_capacitance", 0.0, 0.05),
                             ("transformer_capacitance", 0.0, 0.01)):
-            if draw(st.booleans()):
-                grounding[key] = f"{draw(st.floats(lo, hi)):.4g} uF"
+            if draw(st.booleans()):  # none fitted (0), or a plausible capacitance
+                value = draw(st.one_of(st.just(0.0), st.floats(max(lo, 1e-3), hi)))
+                grounding[key] = f"{value:.4g} uF"
     elif draw(st.booleans()):
         data["instruments"]["neutral_ct"] = "400/5 A"
     if draw(st.booleans()):  # a grid code of bands around nominal

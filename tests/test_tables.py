@@ -185,3 +185,28 @@ def test_doctests(module):
 
     result = doctest.testmod(importlib.import_module(module), optionflags=doctest.NORMALIZE_WHITESPACE)
     assert result.attempted > 0 and result.failed == 0
+
+
+def test_every_choice_of_the_machine_file_has_a_word_for_the_sheet():
+    # the sheet prints words, never a raw choice value such as "unit-transformer"
+    from dataclasses import fields
+
+    from machines.files import MACHINE_KINDS, SECTIONS
+    from reports.tables import CHOICE_WORD
+
+    classes = [c for c in SECTIONS.values() if c is not None] + list(MACHINE_KINDS.values())
+    seen, missing = set(), []
+    while classes:
+        cls = classes.pop()
+        if cls in seen:
+            continue
+        seen.add(cls)
+        for f in fields(cls):
+            spec = f.metadata.get("spec")
+            if spec is None:
+                continue
+            if spec.item is not None:
+                classes.append(spec.item)
+            if spec.kind == "choice" and f.name not in ("page_size", "status", "insulation_class"):
+                missing += [c for c in spec.choices if c not in CHOICE_WORD]
+    assert not missing, f"add words for these choices to reports.tables.CHOICE_WORD: {missing}"
