@@ -28,6 +28,7 @@ from __future__ import annotations
 
 import math
 from dataclasses import dataclass
+from functools import lru_cache
 
 import numpy as np
 
@@ -209,8 +210,10 @@ def speed_after_dip(dip_time: float, initial_speed: float, inertia: float, synch
     n = initial_speed
     dt = dip_time / steps
     k = dt * rated_torque / (inertia * synchronous_speed)
+    grid = np.linspace(0.0, initial_speed, 401)  # the load torque tabulated once, read by interpolation
+    table = load_torque(grid, profile, torque_at_rated_speed, breakaway_torque, rated_speed)
     for _ in range(steps):
-        n = max(n - k * float(load_torque(n, profile, torque_at_rated_speed, breakaway_torque, rated_speed)), 0.0)
+        n = max(n - k * float(np.interp(n, grid, table)), 0.0)
     return n
 
 
@@ -240,6 +243,7 @@ class MotorCurve:
         return np.interp(speed, self.speeds, self.currents)
 
 
+@lru_cache(maxsize=128)
 def model_curve(locked_rotor_torque: float, breakdown_torque: float, rated_slip: float, locked_rotor_current: float,
                 power_factor: float, pull_up: float) -> MotorCurve:
     """The double-cage curve (:mod:`machines.standards.double_cage`) through T_LR, the rated point and T_b whose
@@ -258,6 +262,8 @@ def model_curve(locked_rotor_torque: float, breakdown_torque: float, rated_slip:
     torques = cage.torque(np.maximum(1.0 - n, 1e-9))
     torques[-1] = 0.0 if n[-1] >= 1.0 else torques[-1]
     currents = motor_current(n, locked_rotor_current, rated_slip, power_factor)
+    torques.setflags(write=False)
+    currents.setflags(write=False)
     return MotorCurve(n, torques, currents, "double-cage curve (two cages by Kloss's equation) fitted to the data "
                       "sheet's torques and rated slip", float(reached))
 

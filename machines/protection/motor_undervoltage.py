@@ -32,7 +32,7 @@ def settings(ctx: StudyContext) -> FunctionSettings:
     pickup, p_src = ctx.choose(FID, "pickup_voltage", p_pu * vn, "voltage", "V", "common-practice")
     delay, d_src = ctx.choose(FID, "time_delay", DELAY, "time", "s", "common-practice")
     pu = pickup / vn
-    block, b_src = ctx.choose(FID, "blocked_during_start", pu > b.minimum_voltage - START_MARGIN, "boolean", "",
+    block, b_src = ctx.choose(FID, "blocked_during_start", p_pu > b.minimum_voltage - START_MARGIN, "boolean", "",
                               "common-practice")
     if vt is None:
         checks.append(Check("warn", "No VT (instruments.vt): 27 needs a voltage input; secondary values are not "
