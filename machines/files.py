@@ -131,6 +131,16 @@ def parse_value(spec: FieldSpec, raw: Any, key: str, *, rated_current: float | N
             value = parse_quantity(text, "current", key=key, default_unit=default_unit)
         _check_range(spec, value, key, "A")
         return value
+    if kind == "per_unit_list":
+        return parse_per_unit_list(raw, key)
+    if kind == "current_time_points":
+        return parse_current_time_points(raw, key, spec.unit, rated_current)
+    if kind == "subtable":
+        if isinstance(raw, str):
+            raw = _subtable_from_text(raw, key, spec.item)
+        if not isinstance(raw, dict):
+            raise InputError(key, f"expected a table ([{key}]), got {one_line(raw)}")
+        return spec.item(**_section(spec.item, raw, key, rated_current=rated_current))
     if kind in KINDS:
         k = KINDS[kind]
         value = parse_quantity(raw, k, key=key, allow_zero=spec.allow_zero,
@@ -138,6 +148,85 @@ def parse_value(spec: FieldSpec, raw: Any, key: str, *, rated_current: float | N
         _check_range(spec, value, key, k.si_unit)
         return value
     raise ValueError(f"{key}: field kind {kind!r} is not readable")  # a programming error, not bad input
+
+
+MAX_POINTS = 60  #: entries of a curve a file may give
+
+
+def _items(raw: Any, key: str, what: str) -> list:
+    """A TOML array, or text with entries separated by ';' or ',' (how the wizard takes a curve on one line)."""
+    if isinstance(raw, str):
+        if len(raw) > 2000:
+            raise InputError(key, f"expected at most 2000 characters, got {len(raw)}")
+        raw = [part.strip() for part in re.split(r"[;,]", raw) if part.strip()]
+    if not isinstance(raw, (list, tuple)):
+        raise InputError(key, f"expected a list of {what}, got {one_line(raw)}")
+    if not raw:
+        raise InputError(key, f"expected a list of {what}, got an empty list")
+    if len(raw) > MAX_POINTS:
+        raise InputError(key, f"expected at most {MAX_POINTS} entries, got {len(raw)}")
+    return list(raw)
+
+
+def parse_per_unit_list(raw: Any, key: str) -> tuple[float, ...]:
+    """A list of per-unit numbers, e.g. ``[0, 0.2, 0.4]`` or ``"0, 0.2, 0.4"``.
+
+    >>> parse_per_unit_list("0, 0.2, 40 %", "machine.speed_curve.speed")
+    (0.0, 0.2, 0.4)
+    """
+    out = []
+    for i, item in enumerate(_items(raw, key, "per-unit numbers")):
+        text = item.strip() if isinstance(item, str) else item
+        if isinstance(text, str) and re.fullmatch(r"[+-]?[\d.]+(?:[eE][+-]?\d+)?", text):
+            text = float(text)
+        out.append(parse_quantity(text, "per_unit", key=f"{key}[{i}]", allow_zero=True))
+    return tuple(out)
+
+
+def parse_current_time_points(raw: Any, key: str, unit: str = "A", rated_current: float | None = None
+                              ) -> tuple[tuple[float, float], ...]:
+    """(current [A], time [s]) pairs: ``[["1.5 pu", "900 s"], ["2000 A", "10 s"]]`` or ``"1.5 pu 900 s; …"``.
+
+    Currents are amperes, or per unit of ``rated_current`` where the field is written in pu (a per-unit current
+    read without a rated current, as the wizard checks a single answer, is returned in pu).
+
+    >>> parse_current_time_points("2000 A 10 s; 4000 A 0.5 s", "supply.fuse.points")
+    ((2000.0, 10.0), (4000.0, 0.5))
+    """
+    out = []
+    for i, item in enumerate(_items(raw, key, "(current, time) pairs")):
+        where = f"{key}[{i}]"
+        if isinstance(item, str):
+            m = re.fullmatch(r"\s*(\S+(?:\s*[A-Za-z%]+)?)\s+(\S+\s*[A-Za-z]+)\s*", item)
+            item = [m.group(1), m.group(2)] if m else item
+        if not isinstance(item, (list, tuple)) or len(item) != 2:
+            raise InputError(where, f"expected a pair such as [\"2 pu\", \"330 s\"], got {one_line(item)}")
+        current_text, time_text = item
+        if unit == "pu" and (isinstance(current_text, (int, float)) and not isinstance(current_text, bool)
+                             or isinstance(current_text, str) and re.search(r"(pu|p\.u\.|%)\s*$", current_text)):
+            pu = parse_quantity(current_text, "per_unit", key=where)
+            current = pu * (rated_current if rated_current is not None else 1.0)
+        else:
+            current = parse_quantity(current_text, "current", key=where)
+        out.append((current, parse_quantity(time_text, "time", key=where)))
+    return tuple(out)
+
+
+def _subtable_from_text(text: str, key: str, item: type) -> dict:
+    """A sub-table written on one line, ``"name: value; name: value"`` (entries of a list separated by spaces)."""
+    names = field_specs(item)
+    out: dict[str, Any] = {}
+    for part in re.split(r"\s*\|\s*|\s*;\s*(?=[a-z_]+\s*[:=])", text.strip()):
+        if not part:
+            continue
+        m = re.fullmatch(r"([a-z_]+)\s*[:=]\s*(.+)", part, re.S)
+        if not m or m.group(1) not in names:
+            raise InputError(key, f"expected 'name: value' entries ({', '.join(names)}), got {one_line(part)}")
+        value = m.group(2).strip()
+        if names[m.group(1)].kind == "per_unit_list":
+            value = re.split(r"[\s,]+", value)
+        out[m.group(1)] = value
+    return out
 
 
 def _check_range(spec: FieldSpec, value: float, key: str, si_unit: str) -> None:
@@ -169,7 +258,8 @@ def _section(cls, table: Any, path: str, *, rated_current: float | None = None, 
                     raise InputError(key, f"expected a list of tables ([[{key}]]), got {one_line(raw)}")
                 if len(raw) > 50:
                     raise InputError(key, f"expected at most 50 rows, got {len(raw)}")
-                out[name] = tuple(spec.item(**_section(spec.item, row, f"{key}[{i}]")) for i, row in enumerate(raw))
+                out[name] = tuple(spec.item(**_section(spec.item, row, f"{key}[{i}]", rated_current=rated_current))
+                                  for i, row in enumerate(raw))
             else:
                 out[name] = parse_value(spec, raw, key, rated_current=rated_current)
         elif spec.required:
@@ -212,8 +302,9 @@ def case_from_dict(data: Any) -> tuple[MachineCase, list[str]]:
     cls = MACHINE_KINDS[kind]
     rated = None
     if cls is InductionMotor:
-        partial = {k: v for k, v in mtable.items() if k != "locked_rotor_current"}
-        probe = InductionMotor(**_section(InductionMotor, partial, "machine", skip=("kind", "locked_rotor_current")))
+        per_unit_of_rated = ("locked_rotor_current", "thermal_limit")
+        partial = {k: v for k, v in mtable.items() if k not in per_unit_of_rated}
+        probe = InductionMotor(**_section(InductionMotor, partial, "machine", skip=("kind", *per_unit_of_rated)))
         rated = motor_rated_current(probe)
     machine = cls(**_section(cls, mtable, "machine", rated_current=rated, skip=("kind",)))
     if cls is SynchronousGenerator and "load" in data:

@@ -21,6 +21,10 @@ START, END = "<!-- glossary:start -->", "<!-- glossary:end -->"
 def _kind(spec: FieldSpec) -> str:
     if spec.kind == "choice":
         return "choice: " + ", ".join(f"`{c}`" for c in spec.choices)
+    if spec.kind == "current_time_points":
+        return "(current, time) pairs"
+    if spec.kind == "per_unit_list":
+        return "list of per unit"
     return spec.kind.replace("_", " ").replace("current or pu", "current or pu")
 
 
@@ -70,13 +74,18 @@ def glossary_markdown() -> str:
         out += _table(cls) + [""]
         for f in fields(cls):
             spec = f.metadata.get("spec")
-            if spec is not None and spec.kind == "table" and spec.item is not None:
+            if spec is not None and spec.kind in ("table", "subtable") and spec.item is not None:
                 tables.setdefault(spec.item.__name__, []).append(f"{name}.{f.name}")
                 tables[spec.item.__name__ + ":cls"] = [spec.item]  # type: ignore[list-item]
+                tables[spec.item.__name__ + ":kind"] = [spec.kind]  # type: ignore[list-item]
     for item_name, keys in tables.items():
-        if item_name.endswith(":cls"):
+        if item_name.endswith((":cls", ":kind")):
             continue
         cls = tables[item_name + ":cls"][0]
+        if tables[item_name + ":kind"][0] == "subtable":
+            title = " and ".join(f"`[{k}]`" for k in dict.fromkeys(keys))
+            out += [_rows_line(title, cls).replace(" rows: ", " keys: ", 1), ""]  # type: ignore[arg-type]
+            continue
         title = " and ".join(f"`[[{k}]]`" for k in dict.fromkeys(keys))
         out += [_rows_line(title, cls), ""]  # type: ignore[arg-type]
     return "\n".join(out).rstrip() + "\n"

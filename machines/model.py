@@ -26,7 +26,10 @@ class FieldSpec:
     kind: a kind from ``machines.units.KINDS``, or ``"text"``, ``"choice"``, ``"integer"``, ``"boolean"``,
     ``"ratio"`` (instrument-transformer ratio such as ``"200/1 A"``), ``"letter"`` (NEMA code letter),
     ``"current_or_pu"`` (amperes or per-unit of rated current), ``"table"`` (a list of sub-tables),
-    ``"ct_class"`` (an IEEE C57.13 relaying class such as ``"C200"`` or an IEC 61869-2 class such as ``"5P20"``).
+    ``"ct_class"`` (an IEEE C57.13 relaying class such as ``"C200"`` or an IEC 61869-2 class such as ``"5P20"``),
+    ``"subtable"`` (one sub-table such as ``[machine.speed_curve]``, read against the dataclass ``item``),
+    ``"per_unit_list"`` (a list of per-unit numbers), ``"current_time_points"`` (a list of (current, time) pairs;
+    currents in A, or in pu of the rated current when the field's unit is ``"pu"``).
     """
 
     kind: str
@@ -59,6 +62,8 @@ def spec(
     meta = {"spec": FieldSpec(kind, unit, required, default, lo, hi, choices, help, allow_zero, item)}
     if kind == "table":
         return field(default=(), metadata=meta)
+    if kind in ("per_unit_list", "current_time_points"):
+        return field(default=tuple(value_default or ()), metadata=meta)
     return field(default=value_default, metadata=meta)
 
 
@@ -247,6 +252,45 @@ class RideThroughBand:
     )
 
 
+@dataclass(frozen=True)
+class SpeedCurve:
+    """The maker's torque- and current-speed curve at rated voltage: ``speed`` [pu of synchronous speed, rising],
+    ``torque`` [pu of rated torque], ``current`` [pu of full-load current] (optional), one entry per point."""
+
+    speed: tuple[float, ...] = spec("per_unit_list", "pu", required=True, value_default=(),
+                                    help="pu of synchronous speed, rising from 0")
+    torque: tuple[float, ...] = spec("per_unit_list", "pu", required=True, value_default=(),
+                                     help="pu of rated torque at each speed")
+    current: tuple[float, ...] = spec("per_unit_list", "pu", value_default=(),
+                                      help="pu of full-load current at each speed")
+
+
+@dataclass(frozen=True)
+class ThermalLimit:
+    """One IEEE Std 620 thermal-limit curve of a motor: ``points`` are (current [A], allowed time [s]) pairs."""
+
+    curve: str = spec("choice", required=True, choices=("running", "accelerating", "locked-rotor"),
+                      value_default="", help="running | accelerating | locked-rotor")
+    state: str = spec("choice", default="hot", choices=("hot", "cold"), value_default="hot",
+                      help="the motor's state the curve starts from")
+    voltage: float = spec("per_unit", "pu", default="1.0 pu", lo=0.5, hi=1.2, value_default=1.0,
+                          help="accelerating curves: the voltage they are drawn for")
+    points: tuple[tuple[float, float], ...] = spec(
+        "current_time_points", "pu", required=True, value_default=(),
+        help="(current, time) pairs, current in pu of FLC or A, e.g. [[\"2 pu\", \"330 s\"]]")
+
+
+@dataclass(frozen=True)
+class FuseCurve:
+    """A power fuse of a fused contactor: its rating [A] and its minimum melting curve (current [A], time [s])."""
+
+    rating: float = spec("current", "A", required=True, lo=1.0, hi=1e5, value_default=0.0,
+                         help="rated current of the fuse")
+    points: tuple[tuple[float, float], ...] = spec(
+        "current_time_points", "A", required=True, value_default=(),
+        help="minimum melting curve, (current, time) pairs, e.g. [[\"2000 A\", \"10 s\"]]")
+
+
 # ---------------------------------------------------------------------------------------------------- machines
 
 
@@ -351,6 +395,15 @@ class InductionMotor:
     )
     temperature_rise: float | None = spec(
         "temperature_rise", "K", lo=20.0, hi=180.0, help="rated temperature rise by resistance"
+    )
+    pull_up_torque: float | None = spec(
+        "per_unit", "pu", lo=0.1, hi=4.0, help="minimum torque during acceleration, pu of rated torque"
+    )
+    speed_curve: SpeedCurve | None = spec(
+        "subtable", item=SpeedCurve, help="the maker's torque- and current-speed curve at rated voltage"
+    )
+    thermal_limit: tuple[ThermalLimit, ...] = spec(
+        "table", item=ThermalLimit, help="IEEE Std 620 thermal-limit curves, one table per curve"
     )
 
 
@@ -539,6 +592,10 @@ class Supply:
     minimum_starting_voltage: float | None = spec(
         "per_unit", "pu", lo=0.5, hi=1.1, help="lowest motor terminal voltage during a start (else computed)"
     )
+    voltage_before_start: float = spec(
+        "per_unit", "pu", default="0.95 pu", lo=0.8, hi=1.1, value_default=0.95,
+        help="bus voltage just before a start, for the dip computed from the minimum fault level"
+    )
     starter: str = spec(
         "choice",
         default="breaker",
@@ -551,6 +608,9 @@ class Supply:
     )
     fuse_rating: float | None = spec(
         "current", "A", lo=1.0, hi=1e5, help="rated current of the contactor's power fuse"
+    )
+    fuse: FuseCurve | None = spec(
+        "subtable", item=FuseCurve, help="the contactor's power fuse: rating and minimum melting curve"
     )
     underfrequency_stages: tuple[FrequencyStage, ...] = spec(
         "table", item=FrequencyStage, help="this motor's load-shedding stages: frequency, time_delay"
@@ -780,6 +840,11 @@ def validate_case(case: MachineCase) -> list[str]:
             f"supply.nominal_voltage ({s.nominal_voltage / 1e3:.4g} kV) differs from the machine's "
             f"rated voltage ({m.rated_voltage / 1e3:.4g} kV) by more than 15 %: check the file"
         )
+    if s.fuse is not None:
+        if s.fuse_rating is not None and abs(s.fuse_rating / s.fuse.rating - 1.0) > 1e-6:
+            raise InputError("supply.fuse.rating", f"expected the same rating as supply.fuse_rating "
+                                                   f"({s.fuse_rating:.4g} A), got {s.fuse.rating:.4g} A")
+        _curve_points(s.fuse.points, "supply.fuse.points", s.fuse.rating, "fuse rating", "rating")
     g = case.grounding
     if g.method == "low-resistance" and g.fault_current_limit is None:
         warnings.append("grounding.fault_current_limit is missing: earth-fault sensitivity cannot be judged")
@@ -885,7 +950,84 @@ def _validate_motor(m: InductionMotor) -> list[str]:
         raise InputError("machine.breakdown_torque", "expected more than 1 pu of rated torque")
     if m.starts_hot > m.starts_cold:
         warnings.append("machine.starts_hot is larger than machine.starts_cold: check the maker's data")
+    if m.locked_rotor_torque >= m.breakdown_torque:
+        warnings.append(f"machine.locked_rotor_torque ({m.locked_rotor_torque:g} pu) is not below the breakdown torque "
+                        f"({m.breakdown_torque:g} pu): the study takes the largest torque at standstill")
+    if m.pull_up_torque is not None and m.pull_up_torque > m.locked_rotor_torque + 1e-9:
+        raise InputError("machine.pull_up_torque",
+                         f"expected at most the locked-rotor torque ({m.locked_rotor_torque:g} pu; pull-up torque is "
+                         f"the least torque from standstill to breakdown speed), got {m.pull_up_torque:g} pu")
+    if m.speed_curve is not None:
+        warnings += _validate_speed_curve(m, i_rated)
+    _validate_thermal_limits(m, i_rated)
     return warnings
+
+
+def _rising(values, key: str, what: str) -> None:
+    for i in range(1, len(values)):
+        if not values[i] > values[i - 1]:
+            raise InputError(f"{key}[{i}]", f"expected {what}, got {values[i]:.4g} after {values[i - 1]:.4g}")
+
+
+def _validate_speed_curve(m: InductionMotor, i_rated: float) -> list[str]:
+    """The maker's speed curve: speeds rising from standstill below synchronous speed, one torque (and current)
+    per speed, positive; warnings where it disagrees with the nameplate figures."""
+    c, key = m.speed_curve, "machine.speed_curve"
+    n = len(c.speed)
+    if n < 3:
+        raise InputError(f"{key}.speed", f"expected at least 3 points of the curve, got {n}")
+    for name in ("torque", "current"):
+        values = getattr(c, name)
+        if values and len(values) != n:
+            raise InputError(f"{key}.{name}", f"expected one value per speed ({n}), got {len(values)}")
+        for i, v in enumerate(values):
+            if not v > 0.0:
+                raise InputError(f"{key}.{name}[{i}]", f"expected a positive value, got {v:g}")
+    if c.speed[0] != 0.0:
+        raise InputError(f"{key}.speed[0]", f"expected the first point at standstill (0 pu), got {c.speed[0]:g} pu")
+    _rising(c.speed, f"{key}.speed", "speeds rising")
+    if c.speed[-1] >= 1.0:
+        raise InputError(f"{key}.speed[{n - 1}]", f"expected below synchronous speed (1 pu), got {c.speed[-1]:g} pu")
+    warnings = []
+    if abs(c.torque[0] / m.locked_rotor_torque - 1.0) > 0.05:
+        warnings.append(f"machine.speed_curve.torque[0] ({c.torque[0]:g} pu) differs from machine.locked_rotor_torque "
+                        f"({m.locked_rotor_torque:g} pu) by more than 5 %: the study starts on the curve")
+    if c.current and m.locked_rotor_current is not None and abs(c.current[0] * i_rated / m.locked_rotor_current
+                                                                 - 1.0) > 0.05:
+        warnings.append(f"machine.speed_curve.current[0] ({c.current[0]:g} pu) differs from machine.locked_rotor_current "
+                        f"({m.locked_rotor_current / i_rated:.3g} pu) by more than 5 %: the study starts on the curve")
+    if abs(max(c.torque) / m.breakdown_torque - 1.0) > 0.05 and c.speed[-1] > 0.9:
+        warnings.append(f"the highest torque of machine.speed_curve ({max(c.torque):g} pu) differs from "
+                        f"machine.breakdown_torque ({m.breakdown_torque:g} pu) by more than 5 %")
+    return warnings
+
+
+def _validate_thermal_limits(m: InductionMotor, i_rated: float) -> None:
+    """IEEE 620 curves: each falls with current (currents rising, times falling), currents above full load."""
+    seen = set()
+    for k, c in enumerate(m.thermal_limit):
+        key = f"machine.thermal_limit[{k}]"
+        which = (c.curve, c.state, round(c.voltage, 4) if c.curve == "accelerating" else None)
+        if which in seen:
+            raise InputError(key, f"expected one {c.state} {c.curve} curve" + (
+                f" at {c.voltage:g} pu" if c.curve == "accelerating" else "") + ", got it twice")
+        seen.add(which)
+        _curve_points(c.points, f"{key}.points", i_rated, "full-load current", "FLC")
+
+
+def _curve_points(points, key: str, floor: float, floor_name: str, floor_short: str) -> None:
+    if not points:
+        raise InputError(key, "expected at least one (current, time) pair")
+    for i, (current, _) in enumerate(points):
+        if not current > floor * (1.0 + 1e-9):
+            raise InputError(f"{key}[{i}]", f"expected a current above the {floor_name} ({floor:.4g} A), got "
+                                            f"{current:.4g} A ({current / floor:.3g} × {floor_short})")
+    _rising([p[0] for p in points], key, "currents rising (one point per current)")
+    for i in range(1, len(points)):
+        if not points[i][1] < points[i - 1][1]:
+            raise InputError(f"{key}[{i}]", f"expected a curve that falls with current: {points[i][1]:.4g} s at "
+                                            f"{points[i][0]:.4g} A is not below {points[i - 1][1]:.4g} s at "
+                                            f"{points[i - 1][0]:.4g} A")
 
 
 def _validate_generator(g: SynchronousGenerator) -> list[str]:

@@ -1,38 +1,40 @@
-"""Motor starting: locked-rotor current, voltage at the terminals, torque–speed model, acceleration and current.
+"""Motor starting: locked-rotor current, voltage at the terminals, torque– and current–speed curves, the start.
 
-Three layers, as elsewhere: plain float/array functions (one per equation), a :class:`StartStudy` holding the
-result, and :func:`study_start`, which builds everything from the machine model for one voltage.
+Three layers, as elsewhere: plain float/array functions (one per equation), a :class:`MotorCurve` (torque and
+current against speed at rated voltage) with a :class:`StartStudy` holding one simulated start, and
+:func:`study_start`, which integrates a start on a curve at one voltage.
 
 Models used (and stated on the sheet):
 
 - **Terminal voltage during the start**: the motor at standstill is a constant impedance Z_LR = V_n/(√3·I_LR);
   with the source impedance Z_s the terminal voltage is V = V_bus·Z_LR/(Z_LR + Z_s), the two magnitudes added
   arithmetically because their angles are unknown (conservative: it gives the lower voltage).
-- **Torque–speed curve** (pu of rated torque against pu of synchronous speed): Kloss's equation
-  T = 2·T_b / (s/s_b + s_b/s) between breakdown and synchronous speed, with the breakdown slip found from the
-  rated point, s_b = s_r·(T_b + √(T_b² − 1)). Kloss's equation is the textbook single-cage result (e.g. Boldea &
-  Nasar, *The Induction Machine Handbook*, torque–slip chapter). It badly underrates the torque of a deep-bar or
-  double-cage rotor at standstill, so from standstill to breakdown (x = n/n_b) the curve is ours [D]: the
-  locked-rotor torque with a pull-up dip, T = T_LR·(1 − 0.08·sin(π·x/0.5)) up to half the breakdown speed, then a
-  parabolic rise T = T_LR + (T_b − T_LR)·u², u = (x − 0.5)/0.5, to the breakdown torque. The shape constants were
-  chosen so that, given only the end points of METHODS.md §3.4's maker-style torque table, the acceleration times
-  come out 1–2 % longer than with the full table (tests/test_starting.py): an estimate on the safe side for the
-  51LR window, not a substitute for the maker's curve.
-- **Current–slip curve**: I² = I_0² + (I_LR² − I_0²)·(1 + a²)/((a/s)² + 1), a magnetising current
-  I_0 = sin φ_rated plus a rotor branch R/s + jX whose ratio a = R/X is chosen so the curve passes through I_LR at
-  standstill and rated current at rated slip [D].
+- **Torque–speed curve**: the maker's curve where the file gives it (:func:`maker_curve`, linear between its
+  points, joined to the rated point and to zero torque at synchronous speed), else the double-cage curve of
+  :mod:`machines.standards.double_cage` fitted to the locked-rotor, pull-up and breakdown torques and the rated
+  point (:func:`model_curve`).
+- **Current–speed curve**: the maker's where given, else I² = I_0² + (I_LR² − I_0²)·(1 + a²)/((a/s)² + 1), a
+  magnetising current I_0 = sin φ_rated plus one rotor branch R/s + jX whose ratio a = R/X puts the curve through
+  I_LR at standstill and rated current at rated slip (the approximate equivalent circuit with one rotor branch)
+  [D]. A double-cage rotor's current falls earlier in the start than this one's, so the heat a start puts into
+  the motor is, if anything, overstated.
 - **Torque ∝ V², current ∝ V** at a given slip; the voltage is held at its starting value (conservative).
 - **Acceleration**: J·dω/dt = T_m(ω)·(V/V_n)² − T_L(ω), integrated over speed, t = ∫ J dω / T_acc(ω)
-  (trapezoidal rule on a speed grid, numpy). The start "does not accelerate" when T_acc ≤ 0 below breakdown speed.
-  The start ends at the slip 1.5 × the running slip (the current is then back near load current).
+  (trapezoidal rule on a speed grid, numpy). The start "does not accelerate" when T_acc ≤ 0 below the end of the
+  start. The start ends at the slip 1.5 × the running slip (the current is then back near load current).
 """
 
 from __future__ import annotations
 
 import math
 from dataclasses import dataclass
+from functools import lru_cache
 
 import numpy as np
+
+from machines.standards.double_cage import (  # noqa: F401  (re-exported)
+    TwoCage, breakdown_slip, fit_two_cage, kloss_torque, outer_slip_for_pull_up, pull_up_torque,
+)
 
 GRID_POINTS = 600  #: speed points of the integration grid [-]
 END_SLIP_FACTOR = 1.5  #: the start ends at this multiple of the running slip [-]
@@ -75,62 +77,6 @@ def starting_voltage(bus_voltage: float, rated_voltage: float, locked_rotor_curr
     """
     z_lr = locked_rotor_impedance(rated_voltage, locked_rotor_current)
     return bus_voltage / rated_voltage * z_lr / (z_lr + source_impedance)
-
-
-def breakdown_slip(rated_slip: float, breakdown_torque: float) -> float:
-    """Breakdown slip from the rated point by Kloss's equation, s_b = s_r·(T_b + √(T_b² − 1)) [pu].
-
-    Notes
-    -----
-    Kloss: T/T_b = 2 / (s/s_b + s_b/s); at rated slip T = 1 pu, solved for s_b (the root above s_r).
-
-    Examples
-    --------
-    >>> round(breakdown_slip(0.01, 2.0), 5)
-    0.03732
-    """
-    return rated_slip * (breakdown_torque + math.sqrt(breakdown_torque ** 2 - 1.0))
-
-
-def kloss_torque(slip, breakdown_torque: float, breakdown_slip_: float):
-    """Kloss's equation, T = 2·T_b / (s/s_b + s_b/s) [pu of rated torque] (0 at s = 0).
-
-    Examples
-    --------
-    >>> round(float(kloss_torque(0.01, 2.0, breakdown_slip(0.01, 2.0))), 6)   # the rated point
-    1.0
-    """
-    s = np.maximum(np.asarray(slip, dtype=float), 1e-12)
-    return 2.0 * breakdown_torque / (s / breakdown_slip_ + breakdown_slip_ / s)
-
-
-PULL_UP_DIP = 0.08  #: depth of the pull-up dip below T_LR [-] [D], see the module notes
-DIP_END = 0.5  #: the dip spans standstill to this fraction of breakdown speed [-] [D]
-
-
-def motor_torque(speed, locked_rotor_torque: float, breakdown_torque: float, rated_slip: float) -> np.ndarray:
-    """Motor torque against speed at rated voltage [pu of rated torque] (model in the module notes).
-
-    Parameters
-    ----------
-    speed : n, pu of synchronous speed (array)
-    locked_rotor_torque, breakdown_torque : T_LR, T_b [pu of rated torque]
-    rated_slip : s_r [pu]
-
-    Examples
-    --------
-    >>> [round(float(t), 3) for t in motor_torque([0.0, 0.25, 0.75, 0.99], 0.8, 2.2, 0.01)]
-    [0.8, 0.736, 1.247, 1.0]
-    """
-    n = np.asarray(speed, dtype=float)
-    sb = breakdown_slip(rated_slip, breakdown_torque)
-    nb = 1.0 - sb
-    x = np.clip(n / nb, 0.0, 1.0)
-    dip = locked_rotor_torque * (1.0 - PULL_UP_DIP * np.sin(np.pi * np.minimum(x / DIP_END, 1.0)))
-    u = np.clip((x - DIP_END) / (1.0 - DIP_END), 0.0, 1.0)
-    rise = locked_rotor_torque + (breakdown_torque - locked_rotor_torque) * u * u
-    below = np.where(x < DIP_END, dip, rise)
-    return np.where(n < nb, below, kloss_torque(1.0 - n, breakdown_torque, sb))
 
 
 def load_torque(speed, profile: str, torque_at_rated_speed: float, breakaway_torque: float,
@@ -246,6 +192,108 @@ def first_crossing(speed: np.ndarray, accelerating_torque: np.ndarray) -> float 
     return float(speed[j - 1] + (speed[j] - speed[j - 1]) * t0 / (t0 - t1))
 
 
+def speed_after_dip(dip_time: float, initial_speed: float, inertia: float, synchronous_speed: float,
+                    rated_torque: float, profile: str, torque_at_rated_speed: float, breakaway_torque: float,
+                    rated_speed: float, steps: int = 200) -> float:
+    """Speed the drive coasts down to when the voltage is lost for ``dip_time`` [pu of synchronous speed].
+
+    Notes
+    -----
+    With no motor torque J·ω_s·dn/dt = −T_L(n)·T_rated, integrated by explicit Euler steps (the load torque falls
+    with speed, so the steps overstate the deceleration slightly: the safe side for a ride-through check).
+
+    Examples
+    --------
+    >>> round(speed_after_dip(1.0, 0.99, 10.0, 100.0, 100.0, "constant", 1.0, 1.0, 0.99), 4)   # J·ω_s/T = 10 s
+    0.89
+    """
+    n = initial_speed
+    dt = dip_time / steps
+    k = dt * rated_torque / (inertia * synchronous_speed)
+    grid = np.linspace(0.0, initial_speed, 401)  # the load torque tabulated once, read by interpolation
+    table = load_torque(grid, profile, torque_at_rated_speed, breakaway_torque, rated_speed)
+    for _ in range(steps):
+        n = max(n - k * float(np.interp(n, grid, table)), 0.0)
+    return n
+
+
+# ---------------------------------------------------------------------------------------------------- the curves
+
+
+#: speeds of a tabulated motor curve: even from standstill, denser near synchronous speed [pu]
+_CURVE_SPEEDS = np.unique(np.concatenate((np.linspace(0.0, 0.9, 181), 1.0 - np.geomspace(0.1, 1e-4, 220))))
+
+
+@dataclass(frozen=True)
+class MotorCurve:
+    """Torque [pu of rated torque] and current [pu of full-load current] against speed [pu of synchronous], at
+    rated voltage, tabulated; ``source`` says where the curve comes from, ``pull_up`` is its least torque from
+    standstill to breakdown speed [pu]."""
+
+    speeds: np.ndarray
+    torques: np.ndarray
+    currents: np.ndarray
+    source: str
+    pull_up: float
+
+    def torque(self, speed) -> np.ndarray:
+        return np.interp(speed, self.speeds, self.torques)
+
+    def current(self, speed) -> np.ndarray:
+        return np.interp(speed, self.speeds, self.currents)
+
+
+@lru_cache(maxsize=128)
+def model_curve(locked_rotor_torque: float, breakdown_torque: float, rated_slip: float, locked_rotor_current: float,
+                power_factor: float, pull_up: float) -> MotorCurve:
+    """The double-cage curve (:mod:`machines.standards.double_cage`) through T_LR, the rated point and T_b whose
+    pull-up torque is nearest ``pull_up`` [pu], with the one-branch current model.
+
+    Examples
+    --------
+    >>> c = model_curve(0.8, 2.2, 0.01, 6.0, 0.88, 0.72)
+    >>> round(float(c.torque(0.0)), 3), round(c.pull_up, 3), round(float(c.current(0.0)), 3)
+    (0.8, 0.72, 6.0)
+    """
+    t_b = max(breakdown_torque, locked_rotor_torque * 1.0001)
+    outer, reached = outer_slip_for_pull_up(rated_slip, locked_rotor_torque, t_b, pull_up)
+    cage = fit_two_cage(rated_slip, locked_rotor_torque, t_b, outer)
+    n = _CURVE_SPEEDS
+    torques = cage.torque(np.maximum(1.0 - n, 1e-9))
+    torques[-1] = 0.0 if n[-1] >= 1.0 else torques[-1]
+    currents = motor_current(n, locked_rotor_current, rated_slip, power_factor)
+    torques.setflags(write=False)
+    currents.setflags(write=False)
+    return MotorCurve(n, torques, currents, "double-cage curve (two cages by Kloss's equation) fitted to the data "
+                      "sheet's torques and rated slip", float(reached))
+
+
+def maker_curve(speed: tuple[float, ...], torque: tuple[float, ...], current: tuple[float, ...],
+                locked_rotor_current: float, rated_slip: float, power_factor: float) -> MotorCurve:
+    """The maker's curve at rated voltage, linear between its points; past the last point it runs to the rated
+    point (1 pu torque and current at rated slip) and on to zero torque and the magnetising current sin φ at
+    synchronous speed. Without the maker's currents the one-branch current model is used.
+
+    Examples
+    --------
+    >>> c = maker_curve((0, 0.5, 0.9), (0.8, 0.7, 2.0), (6.0, 5.5, 4.0), 6.0, 0.01, 0.88)
+    >>> [round(float(x), 3) for x in c.torque([0.25, 0.95, 0.99])], round(c.pull_up, 3)
+    ([0.75, 1.444, 1.0], 0.7)
+    """
+    n_r = 1.0 - rated_slip
+    sp, tq = list(speed), list(torque)
+    cu = list(current) if current else [float(x) for x in motor_current(sp, locked_rotor_current, rated_slip,
+                                                                       power_factor)]
+    if sp[-1] < n_r:
+        sp, tq, cu = sp + [n_r], tq + [1.0], cu + [1.0]
+    i0 = math.sqrt(max(1.0 - power_factor ** 2, 0.0))
+    sp, tq, cu = sp + [1.0], tq + [0.0], cu + [i0]
+    n = np.unique(np.concatenate((_CURVE_SPEEDS, sp)))
+    torques = np.interp(n, sp, tq)
+    top = int(np.argmax(torques))
+    return MotorCurve(n, torques, np.interp(n, sp, cu), "the maker's speed curve", float(torques[:top + 1].min()))
+
+
 # ---------------------------------------------------------------------------------------------------- the study
 
 
@@ -288,50 +336,47 @@ class StartStudy:
         return float(np.sum(0.5 * (i2[1:] + i2[:-1]) * np.diff(self.times)))
 
 
-def study_start(*, voltage: float, locked_rotor_current: float, rated_current: float, locked_rotor_torque: float,
-                breakdown_torque: float, rated_slip: float, power_factor: float, inertia: float,
-                synchronous_speed: float, rated_torque: float, load_profile: str, load_torque_rated: float,
-                load_breakaway: float) -> StartStudy:
-    """Simulate a start at a constant terminal ``voltage`` [pu] (all other inputs SI or pu as named).
+def study_start(*, voltage: float, curve: MotorCurve, rated_current: float, inertia: float,
+                synchronous_speed: float, rated_torque: float, rated_slip: float, load_profile: str,
+                load_torque_rated: float, load_breakaway: float, initial_speed: float = 0.0) -> StartStudy:
+    """Simulate a start on ``curve`` at a constant terminal ``voltage`` [pu], from ``initial_speed`` [pu] (0 for
+    a start from standstill, above 0 for a re-acceleration); other inputs SI or pu as named.
 
-    >>> s = study_start(voltage=1.0, locked_rotor_current=600.0, rated_current=100.0, locked_rotor_torque=0.8,
-    ...                 breakdown_torque=2.2, rated_slip=0.01, power_factor=0.88, inertia=100.0,
-    ...                 synchronous_speed=188.5, rated_torque=5000.0, load_profile="quadratic",
-    ...                 load_torque_rated=0.9, load_breakaway=0.1)
+    >>> c = model_curve(0.8, 2.2, 0.01, 6.0, 0.88, 0.8)
+    >>> s = study_start(voltage=1.0, curve=c, rated_current=100.0, inertia=100.0, synchronous_speed=188.5,
+    ...                 rated_torque=5000.0, rated_slip=0.01, load_profile="quadratic", load_torque_rated=0.9,
+    ...                 load_breakaway=0.1)
     >>> s.accelerates, round(s.acceleration_time, 1)
-    (True, 5.9)
+    (True, 6.7)
     """
     v2 = voltage * voltage
     n_rated = 1.0 - rated_slip
-    sb = breakdown_slip(rated_slip, breakdown_torque)
-    nb = 1.0 - sb
-    probe = np.linspace(0.0, 1.0 - 1e-6, GRID_POINTS * 2)
-    tm = motor_torque(probe, locked_rotor_torque, breakdown_torque, rated_slip)
-    tl = load_torque(probe, load_profile, load_torque_rated, load_breakaway, n_rated)
-    crossing = first_crossing(probe, v2 * tm - tl)
-    running_full = first_crossing(probe, tm - tl)
-    s_run_full = 1.0 - (running_full if running_full is not None else n_rated)
-    running_current = float(motor_current(1.0 - s_run_full, locked_rotor_current / rated_current, rated_slip,
-                                          power_factor)) * rated_current
-    if crossing is None or crossing < nb:
-        stall = 0.0 if crossing is None else crossing
-        n = np.linspace(0.0, max(stall, 1e-6) * 0.999, GRID_POINTS)
-        acc = v2 * motor_torque(n, locked_rotor_torque, breakdown_torque, rated_slip) - \
-            load_torque(n, load_profile, load_torque_rated, load_breakaway, n_rated)
-        ok = acc > 0.0
-        times = np.zeros(n.size) if not ok.all() else acceleration_times(n, acc, inertia, synchronous_speed,
-                                                                          rated_torque)
-        i = motor_current(n, locked_rotor_current / rated_current, rated_slip, power_factor) * rated_current * voltage
-        return StartStudy(voltage, False, math.inf, stall, None, stall, nb, times, n, i, running_current)
-    s_eq = 1.0 - crossing
-    end = 1.0 - END_SLIP_FACTOR * s_eq
-    if end <= nb:
-        end = 0.5 * (nb + crossing)
-    # a grid denser towards the end, where the current falls fast
-    u = np.linspace(0.0, 1.0, GRID_POINTS)
-    n = end * (1.0 - (1.0 - u) ** 2) * 0.5 + end * u * 0.5
-    acc = v2 * motor_torque(n, locked_rotor_torque, breakdown_torque, rated_slip) - \
-        load_torque(n, load_profile, load_torque_rated, load_breakaway, n_rated)
-    times = acceleration_times(n, acc, inertia, synchronous_speed, rated_torque)
-    i = motor_current(n, locked_rotor_current / rated_current, rated_slip, power_factor) * rated_current * voltage
-    return StartStudy(voltage, True, float(times[-1]), None, crossing, end, nb, times, n, i, running_current)
+    probe = curve.speeds[curve.speeds < 1.0]
+    tl_probe = load_torque(probe, load_profile, load_torque_rated, load_breakaway, n_rated)
+    running_full = first_crossing(probe, curve.torque(probe) - tl_probe)
+    s_run_full = max(1.0 - (running_full if running_full is not None else float(probe[-1])), 1e-6)
+    running_current = float(curve.current(1.0 - s_run_full)) * rated_current
+    above = probe >= initial_speed
+    crossing = first_crossing(probe[above], v2 * curve.torque(probe[above]) - tl_probe[above])
+    if crossing is None:  # no load torque to meet: it runs up to (nearly) synchronous speed
+        crossing = float(probe[-1])
+    nb = float(curve.speeds[int(np.argmax(curve.torques))])
+    if crossing is not None and crossing > nb:
+        s_eq = 1.0 - crossing
+        end = max(1.0 - END_SLIP_FACTOR * s_eq, 0.5 * (nb + crossing))
+        # a grid denser towards the end, where the current falls fast
+        u = np.linspace(0.0, 1.0, GRID_POINTS)
+        n = initial_speed + (end - initial_speed) * ((1.0 - (1.0 - u) ** 2) * 0.5 + u * 0.5)
+        acc = v2 * curve.torque(n) - load_torque(n, load_profile, load_torque_rated, load_breakaway, n_rated)
+        if np.all(acc > 0.0):
+            times = acceleration_times(n, acc, inertia, synchronous_speed, rated_torque)
+            i = curve.current(n) * rated_current * voltage
+            return StartStudy(voltage, True, float(times[-1]), None, crossing, end, nb, times, n, i, running_current)
+        crossing = first_crossing(n, acc)
+    stall = initial_speed if crossing is None else crossing
+    n = np.linspace(initial_speed, max(stall, initial_speed + 1e-6) * 0.999, GRID_POINTS)
+    acc = v2 * curve.torque(n) - load_torque(n, load_profile, load_torque_rated, load_breakaway, n_rated)
+    times = np.zeros(n.size) if not (acc > 0.0).all() else acceleration_times(n, acc, inertia, synchronous_speed,
+                                                                              rated_torque)
+    i = curve.current(n) * rated_current * voltage
+    return StartStudy(voltage, False, math.inf, stall, None, stall, nb, times, n, i, running_current)

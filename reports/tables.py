@@ -45,6 +45,8 @@ CHOICE_WORD = {
     "trip": "trip", "alarm": "alarm", "IEC": "IEC", "IEEE": "IEEE",
     "static": "static (fed from the terminals)", "brushless": "brushless", "rotating-dc": "rotating DC exciter",
     "unit-transformer": "unit-connected (own step-up transformer)", "bus": "bus-connected",
+    "running": "running overload", "accelerating": "accelerating", "locked-rotor": "locked rotor",
+    "hot": "from hot (rated load)", "cold": "from cold (ambient)",
 }
 #: machine-file keys whose words alone would not say what the trade calls them
 KEY_WORD = {

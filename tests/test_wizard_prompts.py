@@ -42,7 +42,7 @@ IDENT_MOTOR = [ENTER, "CW-P-201", "Chilled-water pump 1", "", "A. Okafor", "", "
 NAMEPLATE_MOTOR = ["250 kW", "6.6 kV", "50", "1485", "0.86", "95.5 %", "", "", ENTER, "", "", "n",
                    "6.5", "0.7", "2.3", "15", "12", "4.5"]
 REST_MOTOR = ["12 kg*m^2", ENTER, "", "", "",
-              "", "250 MVA", "", "", "", ENTER, "n",
+              "", "250 MVA", "", "", "", "", ENTER, "n",
               DOWN + ENTER, "300 A", "",
               "300/1 A", "", "", "", "", "",
               ENTER]

@@ -61,6 +61,7 @@ REST = [
     ("weakest source", "\r"),
     ("X/R ratio", "\r"),
     ("Lowest bus voltage", "\r"),
+    ("Bus voltage just before a start", "\r"),
     ("What switches the motor", "\r"),
     ("under-frequency load shedding", "n"),
     ("How is the system neutral grounded", DOWN + "\r"),

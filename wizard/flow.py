@@ -208,6 +208,15 @@ def makers_data(a: Answers) -> bool:
     return a.get("flow.makers_data") is True
 
 
+def motor_curves(a: Answers) -> bool:
+    return a.get("flow.motor_curves") is True
+
+
+def default_motor_curves(a: Answers) -> str:
+    """Yes when the answers already hold any of the maker's curves (a revision, an answers file)."""
+    return "yes" if any(a.has(k) for k in MOTOR_CURVE_KEYS) else "no"
+
+
 def grounding_is(*methods: str) -> Rule:
     return lambda a: a.get("grounding.method") in methods
 
@@ -385,7 +394,10 @@ _STOP_HINT = "if you do not have it, press Ctrl-C: your answers are kept for 're
 
 #: The maker's optional data a "data sheet at hand?" answer of yes opens.
 MOTOR_MAKER_KEYS = ("machine.locked_rotor_current", "machine.starts_cold", "machine.starts_hot",
-                    "machine.heating_time_constant", "machine.cooling_time_constant")
+                    "machine.heating_time_constant", "machine.cooling_time_constant", "machine.pull_up_torque",
+                    "machine.speed_curve", "machine.thermal_limit")
+#: The maker's curves a "curves on the data sheet?" answer of yes opens (one key skips them all).
+MOTOR_CURVE_KEYS = ("machine.pull_up_torque", "machine.speed_curve", "machine.thermal_limit")
 GENERATOR_MAKER_KEYS = ("machine.x2", "machine.negative_sequence_continuous", "machine.negative_sequence_k",
                         "machine.stator_capacitance", "machine.third_harmonic_neutral_min",
                         "machine.inertia_constant", "machine.frequency_limits")
@@ -474,6 +486,22 @@ QUESTIONS: tuple[Question, ...] = (
              "nameplate", when=both(M, makers_data), blank=constant("not known")),
     Question("machine.cooling_time_constant", "Cooling time constant, standing still", "Cooling time constant",
              "nameplate", when=both(M, makers_data), blank=constant("not known")),
+    Question("flow.motor_curves", "Does the data sheet give the torque–speed curve, the pull-up torque or thermal-limit "
+             "curves?", "Maker's curves at hand", "nameplate", when=both(M, makers_data),
+             default=default_motor_curves, help="no skips them; the study then assumes a curve and says so"),
+    Question("machine.pull_up_torque", "Pull-up torque (least torque while accelerating)", "Pull-up torque",
+             "nameplate", when=both(M, motor_curves), help="pu of full-load torque, e.g. 0.7 pu",
+             blank=constant("not given: 0.85–1.0 × the locked-rotor torque is assumed")),
+    Question("machine.speed_curve", "Torque- and current-speed curve at rated voltage", "Speed curve", "nameplate",
+             when=both(M, motor_curves),
+             help="one line, pu: speed: 0 0.2 0.4 …; torque: 0.8 0.76 …; current: 6.2 6.1 … (speeds rising from 0)",
+             blank=constant("not given: a double-cage curve is fitted to the data sheet's torques")),
+    Question("machine.thermal_limit", "Does the data sheet give IEEE 620 thermal-limit curves?", "Thermal-limit "
+             "curves", "nameplate", when=both(M, motor_curves),
+             row_text=(("curve", "curve {n}: running, accelerating or locked-rotor"),
+                       ("state", "curve {n}: from hot or cold"),
+                       ("voltage", "curve {n}: voltage it is drawn for (1.0 pu unless accelerating)"),
+                       ("points", "curve {n}: points, e.g. 2 pu 330 s, 3 pu 110 s"))),
 
     # nameplate: generator
     Question("flow.makers_data", "Is the maker's data sheet at hand (negative-sequence capability, "
@@ -573,6 +601,9 @@ QUESTIONS: tuple[Question, ...] = (
     Question("supply.minimum_starting_voltage", "Lowest bus voltage at which the motor must still start",
              "Lowest starting voltage", "supply", when=M, help="pu of nominal, e.g. 0.85 pu",
              blank=constant("computed from the fault level and the starting current")),
+    Question("supply.voltage_before_start", "Bus voltage just before a start", "Voltage before a start", "supply",
+             when=lambda a: is_motor(a) and (a.has("supply.fault_level") or a.has("supply.source_impedance")),
+             help="pu of nominal, e.g. 0.95 pu; with the minimum fault level it gives the starting voltage"),
     Question("supply.starter", "What switches the motor?", "Starter", "supply", when=M,
              choices=(("breaker", "a circuit breaker"), ("fused-contactor", "a contactor with power fuses"))),
     Question("supply.contactor_breaking_current", "Rated breaking current of the contactor", "Contactor breaking "
@@ -580,6 +611,10 @@ QUESTIONS: tuple[Question, ...] = (
              help="kA, from the contactor's nameplate", blank=constant("not known")),
     Question("supply.fuse_rating", "Rated current of the power fuses", "Fuse rating", "supply",
              when=lambda a: is_motor(a) and a.get("supply.starter") == "fused-contactor", blank=constant("not known")),
+    Question("supply.fuse", "The power fuse's minimum melting curve", "Fuse melting curve", "supply",
+             when=lambda a: is_motor(a) and a.get("supply.starter") == "fused-contactor",
+             help="one line: rating: 160 A; points: 480 A 100 s, 800 A 10 s, 2400 A 0.2 s (from the fuse maker)",
+             blank=constant("not known: the fuse is not checked against the start")),
     Question("supply.underfrequency_stages", "Is this motor tripped by under-frequency load shedding?",
              "Load-shedding stages", "supply", when=M,
              row_text=(("frequency", "frequency of stage {n}"), ("time_delay", "time delay of stage {n}"))),

@@ -36,9 +36,17 @@ def settings(ctx: StudyContext) -> None:
     else:
         checks.append(Check("ok", f"Phase CT {ct.primary:.0f}/{ct.secondary:g} A: full-load current is {share:.0%} of "
                                   "the CT primary."))
+    block = chosen(ctx, "50P").get("block")
     if not ins.phase_ct_class or not ins.phase_ct_burden:
-        checks.append(Check("warn", "The phase CT class or burden is missing (instruments.phase_ct_class, "
-                                    "phase_ct_burden): the IEEE C37.110 saturation check was not made."))
+        if block:
+            checks.append(Check("fail", f"The fused contactor's trip block at {block:.0f} A "
+                                        f"({block / ct.primary:.0f} × the CT rating) rests on the phase CTs measuring "
+                                        "that current, and on their not under-reading a larger fault as a smaller "
+                                        "one; without the CT class and burden (instruments.phase_ct_class, "
+                                        "phase_ct_burden) this cannot be checked (IEEE C37.110)."))
+        else:
+            checks.append(Check("warn", "The phase CT class or burden is missing (instruments.phase_ct_class, "
+                                        "phase_ct_burden): the IEEE C37.110 saturation check was not made."))
         return None
     if is_iec_protective_class(ins.phase_ct_class):
         checks.append(Check("warn", f"Phase CT class {ins.phase_ct_class} is an IEC 61869-2 class: the IEEE C37.110 "
@@ -46,6 +54,8 @@ def settings(ctx: StudyContext) -> None:
                                     "(1 + X/R)·I_f·(R_ct + R_b) using the maker's data."))
         return None
     vc = c_class_voltage(ins.phase_ct_class)
+    if block:
+        _block_check(ctx, checks, block, vc)
     if b.fault_max is None:
         checks.append(Check("warn", "No fault level: the IEEE C37.110 saturation check was not made."))
         return None
@@ -75,3 +85,31 @@ def settings(ctx: StudyContext) -> None:
                                     "relay maker's CT requirement for instantaneous elements, or use a higher class "
                                     "or a lower burden."))
     return None
+
+
+def _block_check(ctx: StudyContext, checks: list[Check], block: float, vc: float) -> None:
+    """The CTs must measure the trip block level, and a fault above it must not read below it (IEEE C37.110:
+    symmetrical current without saturation while I·Z_b ≤ 20 pu; beyond, the secondary current the CT can drive is
+    about 20/(I·Z_b) of the ratio current)."""
+    ins = ctx.case.instruments
+    b = basis_of(ctx)
+    ct = ins.phase_ct
+    at_block = c37110_saturation_index(block, ct.primary, ins.phase_ct_burden, vc, 0.0)
+    if at_block > SATURATION_LIMIT:
+        checks.append(Check("fail", f"Phase CT {ins.phase_ct_class} ({ct.primary:.0f}/{ct.secondary:g} A) saturates "
+                                    f"below the trip block threshold {block:.0f} A (I·Z_b = {at_block:.1f} > 20, "
+                                    "IEEE C37.110): the relay may read a fault above the contactor's breaking current "
+                                    "as one it may trip. Use a higher class or a lower burden, or move the block."))
+        return
+    worst = b.fault_max or block
+    idx = c37110_saturation_index(worst, ct.primary, ins.phase_ct_burden, vc, 0.0)
+    seen = worst * min(1.0, SATURATION_LIMIT / idx)
+    if seen < block:
+        checks.append(Check("fail", f"At the maximum fault current {worst / 1e3:.1f} kA the phase CT's symmetrical "
+                                    f"output is limited to about {seen:.0f} A primary (I·Z_b = {idx:.0f} > 20, IEEE "
+                                    f"C37.110), below the trip block threshold {block:.0f} A: the relay could trip the "
+                                    "contactor on a fault it cannot break."))
+    else:
+        checks.append(Check("ok", f"Phase CT {ins.phase_ct_class} measures the trip block threshold {block:.0f} A "
+                                  f"({block / ct.primary:.0f} × rating, I·Z_b = {at_block:.1f} ≤ 20) and reads the "
+                                  f"maximum fault ({worst / 1e3:.1f} kA) above it (IEEE C37.110, symmetrical)."))

@@ -1,23 +1,46 @@
-"""What every motor rule needs: locked-rotor current (range), system fault currents, the start simulations.
+"""What every motor rule needs: locked-rotor current (range), system fault currents, the torque curve, the starts,
+the thermal limits.
 
 :func:`motor_basis` runs once per study (from ``machines.protection.motor.prepare``); the rules read the result from
-``ctx.extras["motor"]`` and share their chosen values through ``ctx.extras["chosen"][fid]``.
+``ctx.extras["motor"]``. Rules share values through two dictionaries: :func:`chosen` (the values a rule ended up
+with, overrides included: for checks) and :func:`computed` (the values its guide's rule gives, before any override:
+for computing other settings, so that an override changes only its own value).
+
+The starting voltage (METHODS.md §3.3): the file's ``supply.minimum_starting_voltage`` when given; else no more
+than 0.85 pu (large motors are specified to start at 80–85 % voltage; common practice) or the lower voltage the
+minimum fault level gives with the bus at ``supply.voltage_before_start`` before the start.
+
+The torque curve: the maker's (``machine.speed_curve``) when given; else the double-cage curve fitted to the data
+sheet (:mod:`machines.standards.double_cage`) over a range of pull-up torque — the maker's pull-up torque when
+given, else 0.85–1.0 × the locked-rotor torque (common practice) — and the study is set and checked against the
+long end of the acceleration range.
 """
 
 from __future__ import annotations
 
 import math
-from dataclasses import dataclass
+from dataclasses import dataclass, field
+
+import numpy as np
 
 from machines.model import MachineCase, motor_poles, rated_slip, synchronous_speed
 from machines.protection.base import StudyContext
 from machines.record import Check, Setting
 from machines.standards import fault_current as fc
 from machines.standards.nema import HP, locked_rotor_current_range
-from machines.starting import LB_FT2, StartStudy, breakdown_slip, starting_voltage, study_start
+from machines.standards.thermal_limit import heat_limit, thermal_limit_time
+from machines.starting import (
+    LB_FT2, MotorCurve, StartStudy, breakdown_slip, load_torque, maker_curve, model_curve, starting_voltage,
+    study_start,
+)
 
-#: the start counts as "normal" down to this voltage when neither the file nor the source gives one [pu]
+#: the start is studied at no more than this voltage when the file gives no minimum starting voltage [pu]
 DEFAULT_MINIMUM_STARTING_VOLTAGE = 0.85  # common practice, no published source
+#: without the maker's pull-up torque, the lowest assumed pull-up torque, as a share of the locked-rotor torque [-]
+PULL_UP_LOW = 0.85  # common practice, no published source
+#: where the data sheet promises a start that the fitted curve does not make, the study takes the motor to have the
+#: accelerating-torque margin motors are bought with at their specified starting voltage [pu of rated torque]
+PURCHASE_MARGIN = 0.10  # API 541 style purchase requirement, value from memory
 
 
 @dataclass(frozen=True)
@@ -37,17 +60,56 @@ class MotorBasis:
     horsepower: float
     total_inertia: float  #: [kg·m²]
     load_wk2: float  #: load inertia [lb·ft²]
-    starting_voltage: float  #: computed from the source [pu]
+    starting_voltage: float | None  #: from the minimum fault level with the bus at its pre-start voltage [pu]
     minimum_voltage: float  #: minimum starting voltage used by the study [pu]
     source_basis: str
-    start_min: StartStudy  #: start at the minimum starting voltage
-    start_normal: StartStudy  #: start at the computed starting voltage
+    curve: MotorCurve  #: the torque curve at the long end of the range
+    curve_short: MotorCurve  #: the torque curve at the short end (the same curve when there is no range)
+    pull_up_range: tuple[float, float] | None  #: (long end, short end) pull-up torque [pu]; None: maker's curve
+    start_min: StartStudy  #: start at the minimum starting voltage, long end
+    start_min_short: StartStudy  #: the same at the short end of the range
+    start_rated: StartStudy  #: start at rated voltage, long end
     fault_max: float | None  #: maximum three-phase fault current at the bus [A]
     fault_min: float | None  #: minimum three-phase fault current [A]
     x_over_r: float
+    limits: dict = field(default_factory=dict)  #: IEEE 620 curves by (curve, state): [(voltage, points)]
+    safe_stall_hot: float = 0.0  #: maker's hot safe stall time at rated voltage [s]
+    safe_stall_cold: float = 0.0
+    promised: bool = False  #: the fitted curve stalls but the data sheet promises the start: curve raised to a margin
 
     def lr_pu(self) -> float:
         return self.lr_current / self.flc
+
+    @property
+    def bounded(self) -> bool:
+        """The long end of the start is known: the start at minimum voltage accelerates."""
+        return self.start_min.accelerates
+
+    def heat_starts(self) -> list[StartStudy]:
+        """The simulated starts that accelerate (minimum and rated voltage, long end), for heat checks."""
+        return [s for s in (self.start_min, self.start_rated) if s.accelerates]
+
+    def start_heat(self) -> float:
+        """The largest rotor heat ∫I²dt of a start, minimum or rated voltage, long end [A²·s] (0 if none)."""
+        return max((s.i2t() for s in self.heat_starts()), default=0.0)
+
+    def curve_points(self, curve: str, state: str = "hot") -> list[tuple[float, list[tuple[float, float]]]]:
+        """The maker's IEEE 620 curves of a kind and state, as (voltage, points), lowest voltage first."""
+        return sorted(self.limits.get((curve, state), []))
+
+    def stall_time(self, current: float, state: str = "hot") -> float:
+        """Time the rotor may stay locked at ``current`` [s]: the maker's locked-rotor curve when given, else the
+        safe stall time at the locked-rotor current with I²t held constant (adiabatic) [D]."""
+        curves = self.curve_points("locked-rotor", state)
+        if curves:
+            return thermal_limit_time(curves[0][1], current)
+        t = self.safe_stall_hot if state == "hot" else self.safe_stall_cold
+        return t * (self.lr_high / current) ** 2
+
+    def acceleration_heat_limit(self, state: str = "hot") -> float | None:
+        """The rotor heat the maker's accelerating curve allows, its least I²t [A²·s]; None without one."""
+        curves = self.curve_points("accelerating", state)
+        return min(heat_limit(points) for _, points in curves) if curves else None
 
 
 def _source(case: MachineCase) -> tuple[float | None, float | None, float | None, str]:
@@ -91,10 +153,51 @@ def _locked_rotor(case: MachineCase, flc: float, checks: list[Check]) -> tuple[f
     return hi, lo, hi, True, open_upper
 
 
+def _minimum_voltage(case: MachineCase, lr: float, z_s: float | None, how: str,
+                     checks: list[Check]) -> tuple[float | None, float, str]:
+    """(voltage from the source, minimum starting voltage, its source kind)."""
+    m, sup = case.machine, case.supply
+    v_before = sup.voltage_before_start
+    v_calc = None if z_s is None else starting_voltage(v_before * sup.nominal_voltage, m.rated_voltage, lr, z_s)
+    if sup.minimum_starting_voltage is not None:
+        v_min = sup.minimum_starting_voltage
+        if v_calc is not None and v_calc < v_min:
+            checks.append(Check("warn", f"The terminal voltage at locked rotor computed from {how} with the bus at "
+                                        f"{v_before:.2f} pu before the start is {v_calc:.3f} pu, below the minimum "
+                                        f"starting voltage entered ({v_min:.3f} pu): check the supply data."))
+        return v_calc, v_min, "entered"
+    if v_calc is not None and v_calc < DEFAULT_MINIMUM_STARTING_VOLTAGE:
+        v_min, src = v_calc, "derived"
+        why = (f"{v_calc:.3f} pu, what {how} gives with the bus at {v_before:.2f} pu before the start (below the "
+               f"{DEFAULT_MINIMUM_STARTING_VOLTAGE:.2f} pu large motors are specified to start at)")
+    else:
+        v_min, src = DEFAULT_MINIMUM_STARTING_VOLTAGE, "common-practice"
+        why = (f"{DEFAULT_MINIMUM_STARTING_VOLTAGE:.2f} pu: large motors are specified to start at 80–85 % voltage "
+               "(common practice)" + (f"; {how} with the bus at {v_before:.2f} pu gives {v_calc:.3f} pu" if v_calc
+                                      is not None else ""))
+    checks.append(Check("warn", f"No supply.minimum_starting_voltage is given: the study starts the motor at {why}. "
+                                "Enter the voltage the motor is specified to start at."))
+    return v_calc, v_min, src
+
+
+def _curves(case: MachineCase, flc: float, lr: float, slip: float) -> tuple[MotorCurve, MotorCurve,
+                                                                           tuple[float, float] | None]:
+    m = case.machine
+    if m.speed_curve is not None:
+        c = m.speed_curve
+        curve = maker_curve(c.speed, c.torque, c.current, lr / flc, slip, m.power_factor)
+        return curve, curve, None
+    t_lr = m.locked_rotor_torque
+    lo, hi = (m.pull_up_torque, m.pull_up_torque) if m.pull_up_torque is not None else (PULL_UP_LOW * t_lr, t_lr)
+    long = model_curve(t_lr, m.breakdown_torque, slip, lr / flc, m.power_factor, lo)
+    short = long if hi == lo else model_curve(t_lr, m.breakdown_torque, slip, lr / flc, m.power_factor, hi)
+    return long, short, (lo, hi)
+
+
 def motor_basis(ctx: StudyContext) -> MotorBasis:
     """Compute the motor basis, record the derived values in ``ctx.derived`` and the findings in the checks."""
     case = ctx.case
-    m, load, sup = case.machine, case.load, case.supply
+    m, load = case.machine, case.load
     checks: list[Check] = ctx.extras.setdefault("checks", [])
     flc = ctx.rated_current
     lr, lr_low, lr_high, from_code, open_upper = _locked_rotor(case, flc, checks)
@@ -105,31 +208,34 @@ def motor_basis(ctx: StudyContext) -> MotorBasis:
     j = m.rotor_inertia + load.inertia
     z_s, fmax, fmin, how = _source(case)
     if z_s is None:
-        v_start = sup.nominal_voltage / m.rated_voltage
         checks.append(Check("warn", "No fault level or source impedance is given: the voltage dip on starting "
                                     "cannot be computed; the study assumes a stiff bus and the 50P sensitivity "
                                     "cannot be checked."))
-    else:
-        v_start = starting_voltage(sup.nominal_voltage, m.rated_voltage, lr, z_s)
-    if sup.minimum_starting_voltage is not None:
-        v_min, v_min_source = sup.minimum_starting_voltage, "entered"
-        if v_start < v_min:
-            checks.append(Check("warn", f"The computed starting voltage {v_start:.3f} pu (from {how}) is below the "
-                                        f"minimum starting voltage entered ({v_min:.3f} pu): check the supply data."))
-    else:
-        v_min, v_min_source = (v_start, "derived") if z_s is not None else (DEFAULT_MINIMUM_STARTING_VOLTAGE,
-                                                                             "common-practice")
-    common = dict(locked_rotor_current=lr, rated_current=flc, locked_rotor_torque=m.locked_rotor_torque,
-                  breakdown_torque=m.breakdown_torque, rated_slip=slip, power_factor=m.power_factor, inertia=j,
-                  synchronous_speed=ws, rated_torque=torque, load_profile=load.torque_profile,
-                  load_torque_rated=load.torque_at_rated_speed, load_breakaway=load.breakaway_torque)
-    start_min = study_start(voltage=v_min, **common)
-    start_normal = start_min if abs(v_start - v_min) < 1e-9 else study_start(voltage=v_start, **common)
+    v_calc, v_min, v_src = _minimum_voltage(case, lr, z_s, how, checks)
+    curve, curve_short, pu_range = _curves(case, flc, lr, slip)
+    common = dict(rated_current=flc, inertia=j, synchronous_speed=ws, rated_torque=torque, rated_slip=slip,
+                  load_profile=load.torque_profile, load_torque_rated=load.torque_at_rated_speed,
+                  load_breakaway=load.breakaway_torque)
+    start_min = study_start(voltage=v_min, curve=curve, **common)
+    start_short = start_min if curve_short is curve else study_start(voltage=v_min, curve=curve_short, **common)
+    promised = False
+    if not start_min.accelerates and pu_range is not None and _promised(case, curve, pu_range, slip, v_min):
+        promised = True
+        curve = _with_margin(curve, case, slip, v_min)
+        start_min = study_start(voltage=v_min, curve=curve, **common)
+        if not start_short.accelerates:
+            curve_short, start_short = curve, start_min
+    start_rated = study_start(voltage=1.0, curve=curve, **common)
+    limits: dict = {}
+    for c in m.thermal_limit:
+        limits.setdefault((c.curve, c.state), []).append((c.voltage, list(c.points)))
     basis = MotorBasis(flc, lr, lr_low, lr_high, from_code, open_upper, poles, ws, torque, slip,
-                       m.rated_output / HP, j, load.inertia / LB_FT2, v_start, v_min, how, start_min, start_normal,
-                       fmax, fmin, sup.x_over_r)
-    _record(ctx, basis, v_min_source)
-    _start_checks(basis, m, checks)
+                       m.rated_output / HP, j, load.inertia / LB_FT2, v_calc, v_min, how, curve, curve_short,
+                       pu_range, start_min, start_short, start_rated, fmax, fmin, case.supply.x_over_r, limits,
+                       m.safe_stall_time_hot, m.safe_stall_time_cold, promised)
+    _record(ctx, basis, v_src)
+    _start_checks(basis, case, checks)
+    _heat_checks(basis, checks)
     return basis
 
 
@@ -145,21 +251,41 @@ def _record(ctx: StudyContext, b: MotorBasis, v_min_source) -> None:
         d["locked_rotor_current_high"] = Setting(b.lr_high, "A", "derived",
                                                  label="Locked-rotor current, upper bound",
                                                  note=f"NEMA MG 1 10.37.2 code {m.locked_rotor_code}")
-    d["starting_voltage"] = Setting(b.starting_voltage, "pu", "derived", label="Terminal voltage at locked rotor",
-                                    note=f"from {b.source_basis}")
-    d["minimum_starting_voltage"] = Setting(b.minimum_voltage, "pu", v_min_source, label="Minimum starting voltage")
+    if b.starting_voltage is not None:
+        d["starting_voltage"] = Setting(b.starting_voltage, "pu", "derived", label="Terminal voltage at locked rotor",
+                                        note=f"from {b.source_basis}, bus at "
+                                             f"{ctx.case.supply.voltage_before_start:.2f} pu before the start")
+    d["minimum_starting_voltage"] = Setting(b.minimum_voltage, "pu", v_min_source, label="Minimum starting voltage",
+                                            note={"entered": "as entered", "derived": "from the minimum fault level",
+                                                  "common-practice": "large motors start at 80–85 % (common "
+                                                                     "practice)"}[v_min_source])
+    d["torque_curve"] = Setting(b.curve.source, "", "maker-data" if b.pull_up_range is None else "derived",
+                                label="Torque–speed curve", note="" if b.pull_up_range is None else
+                                "METHODS.md §3.6; the maker's curve (machine.speed_curve) would replace it")
+    if b.pull_up_range is not None:
+        lo, hi = b.pull_up_range
+        given = m.pull_up_torque is not None
+        d["pull_up_torque"] = Setting(b.curve.pull_up, "pu", "maker-data" if given else "common-practice",
+                                      label="Pull-up torque studied (long end)",
+                                      note="the maker's" if given and abs(b.curve.pull_up - lo) < 0.005 else
+                                      f"assumed range {lo:.2f}–{hi:.2f} pu ({PULL_UP_LOW:.2f}–1.00 × T_LR, common "
+                                      "practice)" if not given else
+                                      f"the nearest the double-cage curve reaches to the maker's {lo:.2f} pu")
     acc = b.start_min.acceleration_time
-    d["acceleration_time"] = Setting(acc if math.isfinite(acc) else None, "s", "derived",
-                                     label="Acceleration time at minimum starting voltage",
-                                     note="does not accelerate" if not b.start_min.accelerates else
-                                     "Kloss torque curve, J·dω/dt integrated")
-    if b.start_normal is not b.start_min:
-        a2 = b.start_normal.acceleration_time
-        d["acceleration_time_normal"] = Setting(a2 if math.isfinite(a2) else None, "s", "derived",
-                                                label="Acceleration time at the computed starting voltage")
+    short = b.start_min_short
+    span = (f"range {short.acceleration_time:.1f}–{acc:.1f} s over the pull-up torque"
+            if short is not b.start_min and short.accelerates and b.bounded else "")
+    d["acceleration_time"] = Setting(acc if b.bounded else None, "s", "derived",
+                                     label="Acceleration time at minimum starting voltage (long end)",
+                                     note=span or ("does not accelerate" if not b.bounded else
+                                                   "J·dω/dt integrated on the torque curve"))
+    a2 = b.start_rated.acceleration_time
+    d["acceleration_time_rated"] = Setting(a2 if b.start_rated.accelerates else None, "s", "derived",
+                                           label="Acceleration time at rated voltage",
+                                           note="" if b.start_rated.accelerates else "does not accelerate")
     d["total_inertia"] = Setting(b.total_inertia, "kg*m^2", "derived", label="Motor and load inertia")
     d["rated_torque"] = Setting(b.rated_torque, "N*m", "derived", label="Rated torque")
-    d["breakdown_slip"] = Setting(breakdown_slip(b.rated_slip, m.breakdown_torque), "pu", "derived",
+    d["breakdown_slip"] = Setting(breakdown_slip(b.rated_slip, max(m.breakdown_torque, 1.0 + 1e-6)), "pu", "derived",
                                   label="Breakdown slip (Kloss)")
     if b.fault_max:
         d["fault_current_max"] = Setting(b.fault_max, "A", "derived", label="Maximum three-phase fault current")
@@ -167,33 +293,138 @@ def _record(ctx: StudyContext, b: MotorBasis, v_min_source) -> None:
         d["fault_current_min"] = Setting(b.fault_min, "A", "derived", label="Minimum three-phase fault current")
 
 
-def _start_checks(b: MotorBasis, m, checks: list[Check]) -> None:
+def _load(case: MachineCase, speed, slip: float):
+    load = case.load
+    return load_torque(speed, load.torque_profile, load.torque_at_rated_speed, load.breakaway_torque, 1.0 - slip)
+
+
+def _promised(case: MachineCase, curve: MotorCurve, pu_range: tuple[float, float], slip: float, v: float) -> bool:
+    """Whether the data sheet's own torques, at the voltage ``v``, exceed the load torque at standstill, at the
+    fitted curve's pull-up speed and at breakdown speed: the start the data sheet promises."""
+    m = case.machine
+    v2 = v * v
+    n_b = 1.0 - breakdown_slip(slip, max(m.breakdown_torque, 1.0 + 1e-6))
+    below = curve.speeds <= n_b
+    n_pu = float(curve.speeds[below][int(curve.torques[below].argmin())])
+    return bool(m.locked_rotor_torque * v2 > _load(case, 0.0, slip) and pu_range[0] * v2 > _load(case, n_pu, slip)
+                and m.breakdown_torque * v2 > _load(case, n_b, slip))
+
+
+def _with_margin(curve: MotorCurve, case: MachineCase, slip: float, v: float) -> MotorCurve:
+    """The fitted curve raised, where it falls short, to the load torque plus the purchase margin at voltage ``v``
+    (below breakdown speed only)."""
+    n_b = float(curve.speeds[int(curve.torques.argmax())])
+    floor = (_load(case, curve.speeds, slip) + PURCHASE_MARGIN) / (v * v)
+    torques = curve.torques.copy()
+    below = curve.speeds <= n_b
+    torques[below] = np.maximum(curve.torques[below], floor[below])
+    return MotorCurve(curve.speeds, torques, curve.currents,
+                      curve.source + f", raised where it stalls to the load torque + {PURCHASE_MARGIN:.2f} pu at "
+                                     f"{v:.2f} pu voltage (the margin the data sheet's start promise implies)",
+                      curve.pull_up)
+
+
+def _start_checks(b: MotorBasis, case: MachineCase, checks: list[Check]) -> None:
+    m = case.machine
     s = b.start_min
-    if not s.accelerates:
-        where = ("at standstill (the motor cannot break the load away)" if s.stall_speed < 0.005 else
-                 f"at {s.stall_speed:.1%} of synchronous speed, below breakdown speed")
-        checks.append(Check("fail", f"The motor does not accelerate at the minimum starting voltage "
-                                    f"{b.minimum_voltage:.3f} pu: load torque meets motor torque {where}. Raise the "
+    v = b.minimum_voltage
+    maker = b.pull_up_range is None
+    settle = "the maker's torque–speed curve (machine.speed_curve)" + ("" if m.pull_up_torque is not None else
+                                                                      " or pull-up torque (machine.pull_up_torque)")
+    if s.accelerates and b.promised:
+        checks.append(Check("warn", f"At the minimum starting voltage {v:.3f} pu the double-cage curve fitted to the "
+                                    f"data sheet (pull-up torque {b.curve.pull_up:.2f} pu) would stall, although the "
+                                    "data sheet's own torques exceed the load torque at standstill, pull-up and "
+                                    "breakdown speed. The study takes the motor to start as a motor bought for this "
+                                    f"duty would: with its torque at least {PURCHASE_MARGIN:.2f} pu above the load's "
+                                    "(the usual purchase requirement at the specified starting voltage; API 541 style, "
+                                    f"value from memory), which gives {s.acceleration_time:.1f} s. The result rests on "
+                                    f"that assumption; {settle} would settle it."))
+        return
+    if s.accelerates:
+        short = b.start_min_short
+        rests = "" if maker else (
+            f" The curve between the data sheet's points is the double-cage model (METHODS.md §3.6)"
+            + (f"; over the pull-up torque {b.pull_up_range[0]:.2f}–{b.pull_up_range[1]:.2f} pu the start takes "
+               f"{short.acceleration_time:.1f}–{s.acceleration_time:.1f} s and the study is set on the long end"
+               if short is not s and short.accelerates else "")
+            + f": the result rests on that assumption, which {settle} would settle.")
+        checks.append(Check("ok", f"The motor accelerates at the minimum starting voltage {v:.3f} pu in "
+                                  f"{s.acceleration_time:.1f} s (hot safe stall time {m.safe_stall_time_hot:g} s)."
+                          + rests))
+        return
+    where = ("at standstill (the motor cannot break the load away)" if s.stall_speed < 0.005 else
+             f"at {s.stall_speed:.0%} of synchronous speed")
+    if maker:
+        checks.append(Check("fail", f"The motor does not accelerate at the minimum starting voltage {v:.3f} pu on the "
+                                    f"maker's torque–speed curve: load torque meets motor torque {where}. Raise the "
                                     "starting voltage (stronger source), reduce the load during the start or ask "
                                     "the maker for a motor with more torque."))
-    elif s.acceleration_time > m.safe_stall_time_hot:
-        checks.append(Check("warn", f"The acceleration time at minimum starting voltage ({s.acceleration_time:.1f} s) "
-                                    f"exceeds the hot safe stall time ({m.safe_stall_time_hot:.1f} s): the motor "
-                                    "needs a zero-speed switch, and the maker must confirm the acceleration "
-                                    "thermal-limit curve (IEEE Std 620)."))
     else:
-        checks.append(Check("ok", f"The motor accelerates at the minimum starting voltage {b.minimum_voltage:.3f} pu "
-                                  f"in {s.acceleration_time:.1f} s (hot safe stall time "
-                                  f"{m.safe_stall_time_hot:.1f} s)."))
+        checks.append(Check("fail", f"The motor does not accelerate at the minimum starting voltage {v:.3f} pu: load "
+                                    f"torque meets motor torque {where}, and the data sheet's own torques (locked "
+                                    "rotor, pull-up, breakdown) do not all exceed the load torque at that voltage. "
+                                    "Raise the starting voltage (stronger source), reduce the load during the start "
+                                    "or ask the maker for a motor with more torque."))
+
+
+def _heat_checks(b: MotorBasis, checks: list[Check]) -> None:
+    """A start that needs more rotor heat than the stall limits allow is a failure unless the maker's
+    accelerating thermal limit allows it (IEEE Std 620)."""
+    heat = b.start_heat()
+    if heat <= 0.0:
+        return
+    hot = b.lr_high ** 2 * b.stall_time(b.lr_high, "hot")
+    cold = b.lr_high ** 2 * b.stall_time(b.lr_high, "cold")
+    limit = b.acceleration_heat_limit("hot")
+    share_hot, share_cold = heat / hot, heat / cold
+    if limit is not None:
+        use = heat / limit
+        if use > 1.0:
+            checks.append(Check("fail", f"The longest start needs {use:.0%} of the rotor heat the maker's accelerating "
+                                        "thermal limit allows (IEEE Std 620 curve, from hot): the motor cannot start "
+                                        "this load at the minimum voltage within its limit."))
+        elif use > 0.9:
+            checks.append(Check("warn", f"The longest start uses {use:.0%} of the maker's accelerating thermal limit "
+                                        "(from hot): less than 10 % headroom."))
+        else:
+            checks.append(Check("ok", f"The longest start uses {use:.0%} of the maker's accelerating thermal limit "
+                                      "(from hot)."))
+        return
+    if share_hot > 1.0:
+        checks.append(Check("fail", f"One start needs {share_hot:.1f} × the rotor heat of a hot stall "
+                                    f"({share_cold:.1f} × a cold stall): beyond the stall limits the data sheet gives, "
+                                    "so nothing in the file shows the motor survives a start from hot. The maker's "
+                                    "acceleration thermal limit is needed (IEEE Std 620 accelerating curve: "
+                                    "[[machine.thermal_limit]] with curve = \"accelerating\")."))
+    elif share_hot > 0.9:
+        checks.append(Check("warn", f"One start needs {share_hot:.0%} of the rotor heat of a hot stall: less than 10 % "
+                                    "headroom; ask the maker for the acceleration thermal limit (IEEE Std 620)."))
 
 
 def chosen(ctx: StudyContext, fid: str) -> dict:
-    """The values another rule chose (SI floats by key); empty when that rule has not run or did not apply."""
+    """The values another rule chose, overrides included (SI floats by key), for checks; empty when that rule has
+    not run or did not apply."""
     return ctx.extras.setdefault("chosen", {}).setdefault(fid, {})
+
+
+def computed(ctx: StudyContext, fid: str) -> dict:
+    """The values another rule's guide gives before any override (SI floats by key), for computing settings: an
+    override of one setting then changes no other computed setting."""
+    return ctx.extras.setdefault("computed", {}).setdefault(fid, {})
 
 
 def basis_of(ctx: StudyContext) -> MotorBasis:
     return ctx.extras["motor"]
 
 
-__all__ = ["MotorBasis", "motor_basis", "chosen", "basis_of"]
+def seconds(t: float, never: str = "never") -> str:
+    """A time for a message: ``"12.3 s"``, or a word when it is not finite (no "inf" on a sheet).
+
+    >>> seconds(12.345), seconds(float("inf"), "does not accelerate")
+    ('12.3 s', 'does not accelerate')
+    """
+    return f"{t:.1f} s" if math.isfinite(t) else never
+
+
+__all__ = ["MotorBasis", "motor_basis", "chosen", "computed", "basis_of", "seconds"]

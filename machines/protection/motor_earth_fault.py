@@ -11,8 +11,8 @@ Rule (METHODS.md §7.2 [P][M]):
 
 from __future__ import annotations
 
-from machines.protection.base import StudyContext, current_setting, timed_test_point
-from machines.protection.motor_basis import basis_of, chosen
+from machines.protection.base import StudyContext, current_setting, single, timed_test_point
+from machines.protection.motor_basis import basis_of, chosen, computed
 from machines.record import Check, FunctionSettings, Setting
 from machines.standards.grounding import charging_current
 
@@ -61,7 +61,8 @@ def settings(ctx: StudyContext) -> FunctionSettings:
         p0, why = max(floor, 0.05 * b.flc), "5 % of FLC (no earth-fault current given)"
     if p0 == floor and floor > 0:
         why = f"twice the circuit's own charging current {own:.2f} A"
-    pickup, p_src = ctx.choose(FID, "pickup_current", p0, "current", "A", "common-practice", via=ct)
+    computed(ctx, FID).update(pickup=p0)
+    pickup, p_src = ctx.choose(FID, "pickup_current", p0, "current", "A", "common-practice", via=ct, rounding="up")
     delay, d_src = ctx.choose(FID, "time_delay", ALARM_DELAY if alarm_only else TRIP_DELAY, "time", "s",
                               "common-practice")
     action, a_src = ctx.choose(FID, "action", "alarm" if alarm_only else "trip", "text", "", "common-practice")
@@ -106,17 +107,23 @@ def settings(ctx: StudyContext) -> FunctionSettings:
     if own:
         ctx.derived["charging_current"] = Setting(own, "A", "derived", label="Motor circuit's own 3·I_C0",
                                                   note="3·ω·C0·V_LN")
+    channel = "ground" if case.instruments.ground_ct is not None else "phase"
+    where = ("the core-balance CT input" if channel == "ground" else
+             "phase A of the phase CTs only (residual measurement)")
     tps = [
         timed_test_point("earth-fault current", ct.to_secondary(0.9 * pickup), "A", None,
-                         applied_primary=0.9 * pickup, primary_unit="A",
-                         description="primary or secondary injection through the core-balance CT: 0.9 × pickup "
-                                     "must not operate"),
+                         applied_primary=0.9 * pickup, primary_unit="A", input=channel,
+                         phases=single(ct.to_secondary(0.9 * pickup)), duration=round(delay + 1.0, 1),
+                         description=f"injection on {where}: 0.9 × pickup for {delay + 1:g} s must not operate"),
         timed_test_point("earth-fault current", ct.to_secondary(2.0 * pickup), "A", delay,
-                         applied_primary=2.0 * pickup, primary_unit="A", description=f"2 × pickup: {action}s "
-                         "after the delay"),
+                         applied_primary=2.0 * pickup, primary_unit="A", input=channel,
+                         phases=single(ct.to_secondary(2.0 * pickup)),
+                         description=f"injection on {where}: 2 × pickup {action}s after the delay"),
     ]
-    basis = (f"Pickup {pickup:.2f} A: {why}, above twice the motor circuit's own charging current"
-             + (f" ({own:.2f} A)" if own else "") + f"; {action} after {delay:g} s"
+    floor_text = (f", above twice the motor circuit's own charging current ({own:.2f} A)" if own else
+                  "; the motor circuit's own charging current is not known (grounding.circuit_capacitance), so the "
+                  "margin above it is not checked")
+    basis = (f"Pickup {pickup:.2f} A: {why}{floor_text}; {action} after {delay:g} s"
              + (" (alarm only: " + g.method + " grounding)." if alarm_only else "."))
     return FunctionSettings(FID, "Earth fault (core-balance)", s, basis,
                             ["IEEE Std C37.96 (motor protection guide) [value from memory]",

@@ -8,8 +8,10 @@ enough 27 is blocked while the motor starts (``blocked_during_start``).
 
 from __future__ import annotations
 
+import math
+
 from machines.protection.base import StudyContext, timed_test_point, voltage_setting
-from machines.protection.motor_basis import basis_of
+from machines.protection.motor_basis import basis_of, chosen, seconds
 from machines.record import Check, FunctionSettings, Setting
 
 FID = "27"
@@ -30,7 +32,7 @@ def settings(ctx: StudyContext) -> FunctionSettings:
     pickup, p_src = ctx.choose(FID, "pickup_voltage", p_pu * vn, "voltage", "V", "common-practice")
     delay, d_src = ctx.choose(FID, "time_delay", DELAY, "time", "s", "common-practice")
     pu = pickup / vn
-    block, b_src = ctx.choose(FID, "blocked_during_start", pu > b.minimum_voltage - START_MARGIN, "boolean", "",
+    block, b_src = ctx.choose(FID, "blocked_during_start", p_pu > b.minimum_voltage - START_MARGIN, "boolean", "",
                               "common-practice")
     if vt is None:
         checks.append(Check("warn", "No VT (instruments.vt): 27 needs a voltage input; secondary values are not "
@@ -44,8 +46,8 @@ def settings(ctx: StudyContext) -> FunctionSettings:
         status = "fail" if t_acc > delay else "warn"
         checks.append(Check(status, f"The 27 pickup {pu:.2f} pu is at or above the minimum starting voltage "
                                     f"{b.minimum_voltage:.3f} pu: it picks up during every start at that voltage "
-                                    f"({t_acc:.1f} s against a {delay:g} s delay). Block 27 while starting or lower "
-                                    "the pickup."))
+                                    f"(start: {seconds(t_acc, 'not bounded')}; delay {delay:g} s). Block 27 while "
+                                    "starting or lower the pickup."))
     elif pu > b.minimum_voltage - START_MARGIN:
         checks.append(Check("warn", f"The 27 pickup {pu:.2f} pu is within 0.05 pu of the minimum starting voltage "
                                     f"{b.minimum_voltage:.3f} pu."))
@@ -57,12 +59,15 @@ def settings(ctx: StudyContext) -> FunctionSettings:
                                     "stall before 27 acts at low voltage; 51LR and 49 then protect it."))
     if delay < 1.0:
         checks.append(Check("warn", f"A 27 delay of {delay:g} s may trip the motor for a fault cleared elsewhere."))
+    _jam_check(ctx, checks, delay)
     sec = (lambda v: vt.to_secondary(v)) if vt else (lambda v: v)
     unit_note = "" if vt else " (no VT given: primary volts)"
     tps = [
-        timed_test_point("voltage", sec(1.05 * pickup), "V", None, applied_primary=1.05 * pickup, primary_unit="V",
-                         description="three-phase, 1.05 × pickup: must not operate" + unit_note),
-        timed_test_point("voltage", sec(0.95 * pickup), "V", delay, applied_primary=0.95 * pickup, primary_unit="V",
+        timed_test_point("phase-to-phase voltage", sec(1.05 * pickup), "V", None, applied_primary=1.05 * pickup,
+                         primary_unit="V", duration=round(delay + 2.0, 1),
+                         description=f"three-phase, 1.05 × pickup for {delay + 2:g} s: must not operate" + unit_note),
+        timed_test_point("phase-to-phase voltage", sec(0.95 * pickup), "V", delay, applied_primary=0.95 * pickup,
+                         primary_unit="V", prefault={"phases": _rated_phases(sec(vn)), "duration": 1.0},
                          description="step from rated to 0.95 × pickup: operates after the delay" + unit_note),
     ]
     s = {"pickup_voltage": voltage_setting(pickup, vt, p_src, "Pickup (line-to-line)", note=f"{pu:.2f} pu"),
@@ -73,3 +78,33 @@ def settings(ctx: StudyContext) -> FunctionSettings:
     return FunctionSettings(FID, "Undervoltage", s, basis,
                             ["IEEE Std C37.96 (motor protection guide) [value from memory]"],
                             checks, tps)
+
+
+def _rated_phases(v_line: float) -> list[dict]:
+    """The balanced phase-to-neutral set of a line-to-line voltage (relay side)."""
+    from machines.protection.base import balanced
+
+    return balanced(v_line / math.sqrt(3.0), 30.0)
+
+
+def _jam_check(ctx: StudyContext, checks: list[Check], delay: float) -> None:
+    """27 rides through dips shorter than its delay; the running jam stage must ride through the re-acceleration
+    that follows (METHODS.md §3.2)."""
+    from machines.protection.locked_rotor import reacceleration_time_above
+
+    jam = chosen(ctx, "51LR")
+    if not jam:
+        return
+    above = reacceleration_time_above(ctx, delay, jam["jam"])
+    if not math.isfinite(above):
+        checks.append(Check("warn", f"After a dip of {delay:g} s (which 27 rides through) the drive does not "
+                                    "re-accelerate at the minimum voltage: the motor stalls and 51LR trips it."))
+    elif jam["jam_delay"] <= above:
+        checks.append(Check("warn", f"After a dip of {delay:g} s (which 27 rides through) the current stays above the "
+                                    f"running jam pickup for {above:.1f} s while the drive re-accelerates, longer "
+                                    f"than the jam delay {jam['jam_delay']:g} s: the jam stage trips the ride-through. "
+                                    "Lengthen the jam delay or block it during re-acceleration."))
+    else:
+        checks.append(Check("ok", f"After a dip of {delay:g} s (which 27 rides through) the re-acceleration keeps the "
+                                  f"current above the jam pickup for {above:.1f} s, less than the jam delay "
+                                  f"{jam['jam_delay']:g} s."))

@@ -167,3 +167,41 @@ def adiabatic_negative_sequence_constant(locked_rotor_current: float, stall_time
     540.0
     """
     return locked_rotor_current ** 2 * stall_time_cold
+
+
+#: IEC 60034-26 derating of a cage motor against the negative-sequence voltage V2/V1 [%], digitised from its figure
+#: [value from memory: check against the standard before relying on a figure between the points]
+IEC_60034_26_DERATING: tuple[tuple[float, float], ...] = (
+    (0.0, 1.00), (0.5, 1.00), (1.0, 0.99), (1.5, 0.975), (2.0, 0.96), (2.5, 0.935), (3.0, 0.91), (3.5, 0.88),
+    (4.0, 0.85), (4.5, 0.82), (5.0, 0.79),
+)
+
+
+def iec_unbalance_derating_factor(negative_sequence_percent: float) -> float:
+    """Derating factor of a cage motor for a negative-sequence voltage V2/V1 [%], linear between the points of
+    :data:`IEC_60034_26_DERATING` [-].
+
+    Raises
+    ------
+    ValueError
+        outside 0–5 %.
+
+    References
+    ----------
+    IEC 60034-26:2006, effects of unbalanced voltages on the performance of three-phase cage induction motors,
+    derating figure [digitised from memory]. METHODS.md §5.2.
+
+    Examples
+    --------
+    >>> iec_unbalance_derating_factor(2.0)
+    0.96
+    >>> round(iec_unbalance_derating_factor(2.25), 4)
+    0.9475
+    """
+    pts = IEC_60034_26_DERATING
+    if not 0.0 <= negative_sequence_percent <= pts[-1][0]:
+        raise ValueError(f"expected a negative-sequence voltage from 0 to 5 %, got {negative_sequence_percent!r} %")
+    for (x0, y0), (x1, y1) in zip(pts, pts[1:]):
+        if negative_sequence_percent <= x1:
+            return y0 + (y1 - y0) * (negative_sequence_percent - x0) / (x1 - x0)
+    return pts[-1][1]  # pragma: no cover
