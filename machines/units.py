@@ -343,3 +343,35 @@ def rise_note(text: object) -> str:
     if _RISE_UNITS.get(unit) is None:
         return ""
     return f"{one_line(text.strip())} read as a temperature rise of {parse_quantity(text, 'temperature_rise'):.4g} K"
+
+
+def written_unit(text: object) -> str:
+    """The unit of a quantity as written, '' for a bare number or text that does not start with a number.
+
+    >>> written_unit("1500 hp"), written_unit(" 80K"), written_unit("6.2"), written_unit(0.89)
+    ('hp', 'K', '', '')
+    """
+    if not isinstance(text, str):
+        return ""
+    s = text.strip()
+    m = _NUMBER.match(s)
+    return s[m.end():].strip() if m else ""
+
+
+_PREFIXES = re.compile(r"\b(?:yotta|zetta|exa|peta|tera|giga|mega|kilo|hecto|deca|deci|centi|milli|micro|nano|pico)")
+
+
+def same_unit(a: str, b: str) -> bool:
+    """Whether two written units name the same unit up to an SI prefix and spelling ('kV' and 'V', 'sec' and 's').
+
+    >>> same_unit("sec", "s"), same_unit("kV", "V"), same_unit("hp", "kW"), same_unit("lb*ft^2", "kg*m^2")
+    (True, True, False, False)
+    """
+    if a == b:
+        return True
+    try:
+        names = [_PREFIXES.sub("", str(_parse_units(_HYPHEN_PRODUCT.sub("*", _ALIASES.get(u, u).translate(
+            _SUPERSCRIPTS)), False))) for u in (a, b)]
+    except Exception:  # pint raises several types; an unreadable unit is not the same as any other
+        return False
+    return names[0] == names[1]

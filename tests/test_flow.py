@@ -258,4 +258,7 @@ def test_review_rows_follow_the_sections():
     assert titles == ["Identification", "Nameplate and maker's data", "Driven load", "Supply and starter",
                       "Grounding", "Instrument transformers", "Curves and tables"]
     rows = dict(flow.review_rows(a)[1][1])
-    assert rows["Rated output"] == "1500 hp" and rows["Temperature rise"] == "80 K"
+    # normalised: in the unit the question is asked in, with the form written where it differs
+    assert rows["Rated output"] == "1119 kW (1500 hp)" and rows["Temperature rise"] == "80 K"
+    assert rows["Locked-rotor current"] == "1153 A (6.2 pu)"  # 6.2 × 186 A
+    assert dict(flow.review_rows(a)[2][1])["Load inertia"] == "67.42 kg·m² (1600 lb·ft²)"  # NIST SP 811, B.8

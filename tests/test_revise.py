@@ -36,7 +36,9 @@ def motor(tmp_path):
 @pytest.fixture(autouse=True)
 def terminal(monkeypatch):
     monkeypatch.setattr(session, "_has_terminal", lambda: True)
-    monkeypatch.setattr(session, "_sheet", lambda path: None)
+    monkeypatch.setattr(session, "_sheet_target", lambda path: None)
+    monkeypatch.setenv("COLUMNS", "100")
+    monkeypatch.setenv("LINES", "200")
 
 
 def flat(text: str) -> str:
@@ -60,9 +62,9 @@ def test_one_nameplate_change_shows_the_input_and_every_setting_change(motor, tm
     assert data["sheet"]["history"][-1] == {"revision": 2, "date": flow.today(), "by": "R. Field",
                                             "reason": "motor rewound, new nameplate"}
     text = flat(capsys.readouterr().out)
-    assert "machine.rated_current: 186 A → 190 A" in text
+    assert "Full-load current: 186 A → 190 A" in text
     # every change the compare module finds between the two files is on the screen, settings included
-    expected = format_changes(compare(*studied(kept), *studied(motor)))
+    expected = format_changes(compare(*studied(kept), *studied(motor), labels=flow.input_labels(flow.MOTOR)))
     for line in expected:
         assert flat(line) in text
     assert len(expected) > 1
@@ -103,18 +105,26 @@ def test_interactive_revise_pick_one_answer_from_the_summary(motor, capsys):
     assert data["machine"]["rated_current"] == "190 A"
     assert data["sheet"]["history"][-1]["by"] == "A. Okafor"
     assert data["sheet"]["history"][-1]["reason"] == "new nameplate"
-    assert "machine.rated_current: 186 A → 190 A" in flat(capsys.readouterr().out)
+    assert "Full-load current: 186 A → 190 A" in flat(capsys.readouterr().out)
     assert motor.with_name("chiller.rev1.toml").exists()
 
 
-def test_interactive_revise_enter_keeps_every_value(motor, capsys):
-    a = Answers(data=parse_toml(motor.read_text()))
+def revising(path) -> Answers:
+    """The answers a revision starts from: the file's, its sign-off not asked (a revision is signed off afresh)."""
+    a = Answers(data=parse_toml(path.read_text()))
+    a.flow["revising"] = True
     flow.scripted(a)
-    n = len(flow.applicable(a))
+    return a
+
+
+def test_interactive_revise_enter_keeps_every_value(motor, capsys):
+    n = len(flow.applicable(revising(motor)))
     keys = [ENTER] + [ENTER] * n + [ENTER, "", "names only", "y"]  # all questions, then write, who, why, yes
     assert press(keys, session.run_revise, motor) == 0
     text = flat(capsys.readouterr().out)
-    assert "What changed from revision 1 to 2: no changes" in text
+    # nothing changed but the sign-off, which a new revision clears
+    assert "Settings to key into the relay" not in text
+    assert "Inputs (2): Checked by: L. Brandt → not given Approved by: M. Sato → not given" in text
     assert load_case(motor)[0].sheet.revision == 2
 
 
@@ -126,10 +136,8 @@ def test_interrupted_revise_leaves_a_draft_it_offers_next_time(motor, capsys):
     (draft,) = motor.parent.glob(".relaywright-draft-*.toml")
     assert f"relaywright revise {motor}" in flat(capsys.readouterr().out)
     # next time: continue → the tag answer is there; Enter through the rest, write, who, why, yes
-    a = Answers(data=parse_toml(motor.read_text()))
-    flow.scripted(a)
-    rest = len(flow.applicable(a)) - 2
-    assert press(["y"] + [ENTER] * rest + [ENTER, "", "tag corrected", "y"], session.run_revise, motor) == 0
+    rest = len(flow.applicable(revising(motor))) - 2
+    assert press([ENTER] + [ENTER] * rest + [ENTER, "", "tag corrected", "y"], session.run_revise, motor) == 0
     assert load_case(motor)[0].sheet.tag == "CH-M-101A" and not draft.exists()
 
 
@@ -145,5 +153,5 @@ def test_an_earlier_revision_draft_is_never_lost(motor):
     before = draft.read_text()
     assert press([CTRL_C], session.run_revise, motor) == 130  # Ctrl-C at "continue where it stopped?"
     assert draft.read_text() == before
-    press(["n", ENTER, ENTER, "OTHER", CTRL_C], session.run_revise, motor)  # declined: a second draft
+    press([DOWN + ENTER, ENTER, ENTER, "OTHER", CTRL_C], session.run_revise, motor)  # declined: a second draft
     assert draft.read_text() == before and len(list(motor.parent.glob(".relaywright-draft-*.toml"))) == 2

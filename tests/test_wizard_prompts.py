@@ -1,7 +1,9 @@
 """The interview in process: questionary prompts fed with keys through prompt_toolkit's pipe input.
 
-The keys are what a person presses: text then Enter, arrow-down to pick, y/n for a yes/no question, Ctrl-U to clear
-a refused answer, Ctrl-C to stop. The machine files written are read back through the ordinary machine file reader.
+The keys are what a person presses: text then Enter (a yes/no question too: y or n, then Enter), arrow-down to pick,
+Ctrl-U to clear a refused answer (it is offered again as typed), Ctrl-C to stop. The machine files written are read
+back through the ordinary machine file reader. The terminal is taken as 100 × 200 (one review page); paging is
+tested with 40 lines.
 """
 
 from __future__ import annotations
@@ -15,12 +17,11 @@ from machines.files import load_case, parse_toml
 from wizard import session
 
 ENTER, DOWN, CLEAR_LINE, CTRL_C = "\r", "\x1b[B", "\x15", "\x03"
-RAW = (ENTER, "y", "n")  # sent as they are: a selection, or a yes/no that answers at once
 
 
 def keys(answers) -> str:
-    """Typed answers become text + Enter; selections and yes/no keys go as they are."""
-    return "".join(k if (k in RAW or k.endswith(ENTER) or k == CTRL_C) else k + ENTER for k in answers)
+    """Typed answers (yes/no included) become text + Enter; selections (ending in Enter) and Ctrl-C go as they are."""
+    return "".join(k if (k.endswith(ENTER) or k == CTRL_C) else k + ENTER for k in answers)
 
 
 def press(answers, fn, *args, **kwargs):
@@ -35,7 +36,9 @@ def press(answers, fn, *args, **kwargs):
 def terminal(monkeypatch):
     """Pretend a terminal is there, and leave the PDF sheet out (another command's job, tested there)."""
     monkeypatch.setattr(session, "_has_terminal", lambda: True)
-    monkeypatch.setattr(session, "_sheet", lambda path: None)
+    monkeypatch.setattr(session, "_sheet_target", lambda path: None)
+    monkeypatch.setenv("COLUMNS", "100")
+    monkeypatch.setenv("LINES", "200")
 
 
 IDENT_MOTOR = [ENTER, "CW-P-201", "Chilled-water pump 1", "", "A. Okafor", "", "", "", ENTER]
@@ -44,7 +47,7 @@ NAMEPLATE_MOTOR = ["250 kW", "6.6 kV", "50", "1485", "0.86", "95.5 %", "", "", E
 REST_MOTOR = ["12 kg*m^2", ENTER, "", "", "",
               "", "250 MVA", "", "", "", ENTER, "n",
               DOWN + ENTER, "300 A", "",
-              "300/1 A", "", "", "", "", "",
+              "50/1 A", "", "", "", "", "",
               ENTER]
 MOTOR = IDENT_MOTOR + NAMEPLATE_MOTOR + REST_MOTOR
 WRITE = [ENTER]
@@ -103,7 +106,7 @@ def test_a_warning_can_be_kept_or_fixed(tmp_path, capsys):
     out = tmp_path / "m.toml"
     nameplate = list(NAMEPLATE_MOTOR)
     # 40 A is 50 % above the current that 250 kW at 6.6 kV, 95.5 %, 0.86 gives: warned; 'n' gives it again
-    nameplate[6] = "40" + ENTER + "n" + "26.6"
+    nameplate[6] = "40" + ENTER + "n" + ENTER + "26.6"
     assert press(IDENT_MOTOR + nameplate + REST_MOTOR + WRITE, session.run_new, output=out) == 0
     assert parse_toml(out.read_text())["machine"]["rated_current"] == "26.6 A"
     assert "off the" in " ".join(capsys.readouterr().out.split())
@@ -126,11 +129,26 @@ def test_changing_the_grounding_method_at_the_review_asks_the_new_questions(tmp_
     assert parse_toml(out.read_text())["grounding"] == {"method": "high-resistance", "fault_current_limit": "5 A"}
 
 
-def test_a_refusal_of_the_file_reader_at_the_review_is_put_right(tmp_path, capsys):
+def test_a_speed_that_does_not_fit_the_frequency_is_refused_at_once(tmp_path, capsys):
     out = tmp_path / "m.toml"
     nameplate = list(NAMEPLATE_MOTOR)
-    nameplate[3] = "1300"  # 13 % slip for a 4-pole motor at 50 Hz: the file reader refuses it at the review
-    assert press(IDENT_MOTOR + nameplate + REST_MOTOR + [ENTER, "1485"] + WRITE, session.run_new, output=out) == 0
+    # 13 % slip for a 4-pole motor at 50 Hz: refused as soon as it is given, not at the review
+    nameplate[3] = "1300" + ENTER + CLEAR_LINE + "1485"
+    assert press(IDENT_MOTOR + nameplate + REST_MOTOR + WRITE, session.run_new, output=out) == 0
+    assert parse_toml(out.read_text())["machine"]["rated_speed"] == "1485 rpm"
+    text = " ".join(capsys.readouterr().out.split())
+    assert "✗ machine.rated_speed: expected a full-load slip between 0 and 10 %, got 13.3% (1300 rpm)" in text
+    assert text.index("expected a full-load slip") < text.index("Review before writing")
+
+
+def test_a_refusal_of_the_file_reader_at_the_review_is_put_right(tmp_path, capsys):
+    # a draft holding an answer the file reader refuses (written by hand, or by an older copy): the review shows
+    # the refusal and offers that answer again
+    out = tmp_path / "m.toml"
+    press(MOTOR, session.run_new, output=out)  # every answer, then the input ends at the review
+    (draft,) = tmp_path.glob(".relaywright-draft-*.toml")
+    draft.write_text(draft.read_text().replace('rated_speed = "1485 rpm"', 'rated_speed = "1300 rpm"'))
+    assert press([ENTER, "1485"] + WRITE, session.run_new, resume=draft) == 0
     assert parse_toml(out.read_text())["machine"]["rated_speed"] == "1485 rpm"
     assert "machine.rated_speed: expected a full-load slip" in " ".join(capsys.readouterr().out.split())
 
@@ -163,7 +181,7 @@ def test_an_earlier_draft_is_offered_and_never_overwritten(tmp_path):
     (first,) = tmp_path.glob(".relaywright-draft-*.toml")
     before = first.read_text()
     # a new session for the same file: decline to continue, answer one question, stop
-    press(["n", ENTER, "OTHER-1"], session.run_new, output=out)
+    press([DOWN + ENTER, ENTER, "OTHER-1"], session.run_new, output=out)
     assert first.read_text() == before
     assert len(list(tmp_path.glob(".relaywright-draft-*.toml"))) == 2
 
