@@ -155,3 +155,77 @@ def test_an_earlier_revision_draft_is_never_lost(motor):
     assert draft.read_text() == before
     press([DOWN + ENTER, ENTER, ENTER, "OTHER", CTRL_C], session.run_revise, motor)  # declined: a second draft
     assert draft.read_text() == before and len(list(motor.parent.glob(".relaywright-draft-*.toml"))) == 2
+
+
+COMMENTED = EXAMPLES / "chiller-compressor-motor.toml"
+
+
+def commented_file(tmp_path):
+    """The chiller motor as a person keeps it: comments above and beside values, an issued, signed-off revision."""
+    text = COMMENTED.read_text()
+    text = text.replace('format = "relaywright.machine/1"\n',
+                        'format = "relaywright.machine/1"\n# Chiller 1 motor: data from the rewind report\n')
+    text = text.replace('rated_current = "186 A"', 'rated_current = "186 A"        # nameplate, after rewind')
+    text = text.replace("[load]\n", "# the compressor, referred to the motor shaft\n[load]\n")
+    text = text.replace('status = "draft"', 'status = "issued"')
+    path = tmp_path / "chiller.toml"
+    path.write_text(text)
+    return path
+
+
+def test_a_commented_file_revised_twice_keeps_its_comments_order_and_layout(tmp_path):
+    path = commented_file(tmp_path)
+    original = path.read_text()
+    changes = tmp_path / "changes.toml"
+    changes.write_text(CHANGES)
+    assert session.run_revise(path, answers=changes) == 0
+    changes.write_text(CHANGES.replace('"190 A"', '"192 A"').replace("motor rewound, new nameplate",
+                                                                     "nameplate corrected"))
+    assert session.run_revise(path, answers=changes) == 0
+    text = path.read_text()
+    for comment in ("# Chiller 1 motor: data from the rewind report", "# the compressor, referred to the motor shaft",
+                    'rated_current = "192 A"        # nameplate, after rewind'):
+        assert comment in text
+    # every table and key of the original is where it was (the sign-off is cleared, the history added)
+    old_data, new_data = parse_toml(original), parse_toml(text)
+    assert list(new_data) == list(old_data)
+    for section, table in old_data.items():
+        if isinstance(table, dict):
+            kept = [k for k in table if k not in ("checked_by", "approved_by")]
+            assert [k for k in new_data[section] if k != "history"] == kept, section
+    unchanged = [line for line in original.splitlines()
+                 if not line.startswith(("rated_current", "revision", "date", "status", "checked_by", "approved_by"))]
+    for line in unchanged:
+        assert line in text.splitlines(), line
+    data = parse_toml(text)
+    assert [h["reason"] for h in data["sheet"]["history"]] == ["motor rewound, new nameplate", "nameplate corrected"]
+    assert data["sheet"]["revision"] == 3
+    assert text.count("[[sheet.history]]") == 2
+
+
+def test_a_new_revision_clears_the_sign_off_and_is_a_draft(tmp_path, capsys):
+    path = commented_file(tmp_path)
+    changes = tmp_path / "changes.toml"
+    changes.write_text(CHANGES)
+    session.run_revise(path, answers=changes)
+    sheet = parse_toml(path.read_text())["sheet"]
+    assert sheet["status"] == "draft"
+    assert not {"checked_by", "checked_on", "approved_by", "approved_on"} & set(sheet)
+    text = flat(capsys.readouterr().out)
+    assert "revision 1 was checked by L. Brandt and approved by M. Sato" in text
+    assert "needs checking and approval before use" in text
+
+
+def test_the_sign_off_is_not_asked_in_a_revision(motor):
+    a = revising(motor)
+    assert not {"sheet.checked_by", "sheet.approved_by"} & {q.key for q in flow.applicable(a)}
+    assert "checked_by" not in flow.machine_data(a)["sheet"]
+
+
+def test_revise_ends_with_the_findings_and_the_settings_exit_code(motor, tmp_path, capsys):
+    changes = tmp_path / "changes.toml"
+    # a hot stall time of 1 s: the study fails its check, as 'relaywright settings' does
+    changes.write_text(CHANGES.replace('rated_current = "190 A"', 'safe_stall_time_hot = "1 s"'))
+    code = session.run_revise(motor, answers=changes)
+    assert code == run_cli("settings", str(motor)).returncode
+    assert "Findings: " in flat(capsys.readouterr().out)

@@ -19,9 +19,13 @@ from wizard import session
 ENTER, DOWN, CLEAR_LINE, CTRL_C = "\r", "\x1b[B", "\x15", "\x03"
 
 
+BACK_MENU, BACK_TEXT = "<", "<" + ENTER  # in a menu < acts at once; on a text line it is typed, then Enter
+
+
 def keys(answers) -> str:
-    """Typed answers (yes/no included) become text + Enter; selections (ending in Enter) and Ctrl-C go as they are."""
-    return "".join(k if (k.endswith(ENTER) or k == CTRL_C) else k + ENTER for k in answers)
+    """Typed answers (yes/no included) become text + Enter; selections (ending in Enter), < in a menu and Ctrl-C go
+    as they are."""
+    return "".join(k if (k.endswith(ENTER) or k in (CTRL_C, BACK_MENU)) else k + ENTER for k in answers)
 
 
 def press(answers, fn, *args, **kwargs):
@@ -200,3 +204,63 @@ def test_no_terminal_says_so_and_exits_2(monkeypatch, capsys):
     monkeypatch.setattr(session, "_has_terminal", lambda: False)
     assert session.run_new() == 2
     assert "--answers" in capsys.readouterr().err
+
+
+def is_menu(key: str) -> bool:
+    """The scripted answers to menus are selections: Enter alone or arrow keys then Enter."""
+    return key == ENTER or (key.endswith(ENTER) and key.startswith(DOWN))
+
+
+def test_going_back_from_every_question_changes_no_answer(tmp_path):
+    straight = tmp_path / "straight.toml"
+    assert press(MOTOR + WRITE, session.run_new, output=straight) == 0
+    # at every question, go back (< and Enter on a line, < alone in a menu); the previous question comes back with
+    # its answer as the default, Enter keeps it, and the question left is asked again; then back from the review
+    script = [BACK_MENU, MOTOR[0]]  # back at the first question: there is nothing before it
+    for i in range(1, len(MOTOR)):
+        script += [BACK_MENU if is_menu(MOTOR[i]) else BACK_TEXT, ENTER, MOTOR[i]]
+    script += [BACK_MENU, ENTER]  # back out of the review's menu: the last question again, kept
+    out = tmp_path / "m.toml"
+    assert press(script + WRITE, session.run_new, output=out) == 0
+    assert parse_toml(out.read_text()) == parse_toml(straight.read_text())
+
+
+def test_back_out_of_the_review_menus(tmp_path):
+    out = tmp_path / "m.toml"
+    # review: Change an answer → Which section? → < → the review again → Change → section → Which answer? → < →
+    # Which section? again → < → review → write (Esc does the same in a terminal: see test_wizard_pty)
+    back = [DOWN + ENTER, BACK_MENU, DOWN + ENTER, DOWN + ENTER, BACK_MENU, BACK_MENU]
+    assert press(MOTOR + back + WRITE, session.run_new, output=out) == 0
+    assert load_case(out)[0].sheet.tag == "CW-P-201"
+
+
+def test_the_review_is_paged_to_a_40_line_terminal(tmp_path, monkeypatch, capsys):
+    monkeypatch.setenv("LINES", "40")
+    monkeypatch.setenv("COLUMNS", "80")
+    out = tmp_path / "m.toml"
+    capsys.readouterr()
+    press(MOTOR, session.run_new, output=out)  # the input ends at the first review page
+    text = capsys.readouterr().out
+    page = text[text.index("══ Review before writing"):text.index("\nStopped.")]
+    assert "page 1 of " in page
+    # the page, a blank line before it and its menu (the question and three entries) fit in 40 lines
+    assert 1 + len(page.rstrip("\n").splitlines()) + 4 <= 40
+    assert all(len(line) <= 79 for line in page.splitlines())
+
+
+def test_how_an_answer_was_read_is_said(tmp_path, capsys):
+    nameplate = list(NAMEPLATE_MOTOR)
+    nameplate[0] = "335 hp"
+    nameplate[17] = "107 lb-ft²"
+    rest = list(REST_MOTOR)
+    rest[6] = "22 kA"  # the fault level as a current, at the 6.6 kV bus
+    out = tmp_path / "m.toml"
+    assert press(IDENT_MOTOR + nameplate + rest + WRITE, session.run_new, output=out) == 0
+    text = " ".join(capsys.readouterr().out.split())
+    # NIST SP 811, B.8: 1 hp = 745.7 W, 1 lb·ft² = 0.04214 kg·m²; IEC 60909-0: S = √3·U·I
+    assert "→ 335 hp = 249.8 kW" in text
+    assert "→ 107 lb·ft² = 4.509 kg·m²" in text
+    assert "→ 22 kA at 6.6 kV = 251.5 MVA" in text
+    assert "→ 6.5 pu = 173" in text and "A full-load current)" in text
+    data = parse_toml(out.read_text())
+    assert data["supply"]["fault_level"] == "251.5 MVA"

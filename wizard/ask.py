@@ -70,26 +70,35 @@ def style():
 # ---------------------------------------------------------------------------------------------------- keys
 
 
-def discard_typeahead() -> None:
+def discard_typeahead() -> int:
     """Drop the keys typed before this prompt appeared: those still in the terminal's input buffer and those
-    prompt_toolkit read with the previous answer and keeps for the next prompt. Only for a real terminal."""
+    prompt_toolkit read with the previous answer and keeps for the next prompt. Only for a real terminal.
+
+    Returns how many keys (bytes) were dropped, so the person can be told.
+    """
     from prompt_toolkit.application.current import get_app_session
-    from prompt_toolkit.input.typeahead import clear_typeahead
+    from prompt_toolkit.input.typeahead import clear_typeahead, get_typeahead
 
     inp = get_app_session().input
     try:
         fd = inp.fileno()
     except (AttributeError, NotImplementedError, OSError, ValueError):
-        return
+        return 0
     if not isinstance(fd, int) or not os.isatty(fd):
-        return
+        return 0
+    dropped = len(get_typeahead(inp))  # takes them out of prompt_toolkit's queue
+    clear_typeahead(inp)
     try:
+        import fcntl
+        import struct
         import termios
 
+        waiting = struct.unpack("i", fcntl.ioctl(fd, termios.FIONREAD, b"\0\0\0\0"))[0]
         termios.tcflush(fd, termios.TCIFLUSH)
-    except (ImportError, OSError):  # not a POSIX terminal: prompt_toolkit's own queue is still cleared
+        dropped += waiting
+    except (ImportError, OSError, struct.error):  # not a POSIX terminal: prompt_toolkit's own queue is still cleared
         pass
-    clear_typeahead(inp)
+    return dropped
 
 
 def _nav_keys(menu: bool):
@@ -119,7 +128,8 @@ def _run(question, menu: bool) -> Any:
 
     app = question.application
     app.key_bindings = merge_key_bindings([app.key_bindings, _nav_keys(menu)])
-    discard_typeahead()
+    if discard_typeahead():
+        terminal.say("    (keys typed before this question appeared were not used: answer it now)")
     return question.unsafe_ask()
 
 
@@ -134,7 +144,7 @@ def _fit(message: str, instruction: str = "", room: int = 12) -> str:
     """
     width = terminal.line_width()
     lines = textwrap.wrap(message, width=width - 2, break_long_words=False, break_on_hyphens=False) or [""]
-    if instruction and len(lines[-1]) + 2 + len(instruction) + room > width:
+    if len(lines[-1]) + 2 + len(instruction) + room > width:
         lines.append("")
     return "\n  ".join(lines)
 

@@ -946,8 +946,10 @@ def accept(q: Question, a: Answers, raw: Any) -> Any:
             return raw.upper()
         if unit and _BARE.fullmatch(raw):
             return f"{raw} {unit}"
-        if s.kind == "ratio" and not re.search(r"[A-Za-z]\s*$", raw):
-            return f"{raw} {unit}"
+        if s.kind == "ratio":  # written primary/secondary with its unit: '150:5' → '150/5 A'
+            m = re.search(r"[A-Za-z]+\s*$", raw)
+            numbers = re.sub(r"\s*[/:]\s*", "/", raw[:m.start()] if m else raw).strip()
+            return f"{numbers} {m.group(0).strip() if m else unit}"
     return raw
 
 
@@ -988,7 +990,7 @@ def record(q: Question, a: Answers, value: Any) -> None:
     before = a.get(q.key)
     if q.key == "machine.kind" and a.kind is not None and value != a.kind:
         a.asked[:] = [k for k in a.asked if (f := find(k)) is not None and f.section == "identification"]
-    elif before is not None and before != value:
+    elif before != value:  # (a first answer too: after an answers file that lacked it, what rests on it is asked)
         for other in QUESTIONS:  # answers that rest on this one are asked again, offered as they are
             if q.key in other.after:
                 a.unmark(other.key)

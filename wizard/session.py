@@ -98,7 +98,7 @@ def _start_draft(output: Path | None) -> tuple[Draft, Answers]:
             say(f"  {folder / d.path.name}", wrap=False)
             say(f"    {describe(d, answers).partition(' ')[2]}")
         options = [(str(d.path), f"continue {describe(d, answers)}") for d, answers in found]
-        options.append(("fresh", "start a new machine file (the drafts are kept)"))
+        options.append(("fresh", f"start a new machine file (the draft{'s are' if len(found) > 1 else ' is'} kept)"))
         while True:
             try:
                 pick = choose("Continue where it stopped?", options)
@@ -259,13 +259,16 @@ def _written(out: Path, data: dict, force: bool = False) -> int:
     """After the machine file is written: the findings, the sheet, what to do next. Returns the exit code of
     ``relaywright settings`` (1 when a check failed), or 2 when the sheet could not be made."""
     sheet = data["sheet"]
-    say(f"Written: {out}  ({sheet['tag']}, revision {sheet.get('revision', 0)})", wrap=False)
+    say(f"Written: {out}  ({sheet['tag']}, revision {sheet.get('revision', 0)})")
     code = _findings(out)
     made = _sheet_if_free(out, force)
-    say(f"Next:  relaywright settings {out}    (the settings table with every finding)", wrap=False)
-    if made is None:
-        say(f"       relaywright sheet {out}       (the PDF sheet)", wrap=False)
-    say(f"       relaywright revise {out}      (after a change on site)", wrap=False)
+    say("Next:")
+    for command, what in ((f"relaywright settings {out}", "the settings table with every finding"),
+                          (f"relaywright sheet {out}", "the PDF sheet") if made is None else ("", ""),
+                          (f"relaywright revise {out}", "after a change on site")):
+        if command:
+            say(f"  {command}", wrap=False)
+            say(f"      {what}")
     say(CAUTION_LINE)
     return EXIT_BAD_INPUT if made == EXIT_BAD_INPUT else code
 
@@ -327,10 +330,8 @@ def _sheet_if_free(path: Path, force: bool) -> int | None:
         say(f"The sheet {pdf} already exists and is not replaced; make it again with 'relaywright sheet {path} "
             f"-o OTHER.pdf'.")
         return None
-    try:
-        return _sheet(path)
-    except Exception:  # pragma: no cover - _sheet handles its own failures
-        return EXIT_BAD_INPUT
+    say("The sheet:")
+    return _sheet(path)
 
 
 def _sheet(path: Path) -> int | None:
@@ -361,6 +362,7 @@ def interview(a: Answers, draft: Draft | None, *, title: str = "Review before wr
     """
     from wizard.ask import Back, ask
 
+    _warm_up()
     section = None
     while True:
         q = flow.next_question(a)
@@ -391,6 +393,16 @@ def interview(a: Answers, draft: Draft | None, *, title: str = "Review before wr
             draft.save(a)
 
 
+def _warm_up() -> None:
+    """Build the unit registry while the person reads the first questions, so the first quantity answered is not
+    kept waiting for it."""
+    import threading
+
+    from machines.units import registry
+
+    threading.Thread(target=registry, name="units-warm-up", daemon=True).start()
+
+
 def _section_rule(section: str, a: Answers) -> None:
     ids = [s for s, _, _ in flow.SECTIONS]
     title = f"── {ids.index(section) + 1}/{len(ids)}  {flow.section_title(section, a.kind)} "
@@ -416,14 +428,21 @@ def summary_lines(a: Answers, width: int | None = None) -> list[list[str]]:
 
 
 def _pages(sections: list[list[str]], tail: list[str], room: int) -> list[list[str]]:
-    """Whole sections to a page where they fit, a long one split; the findings ``tail`` on the last page."""
+    """Pages of at most ``room`` lines: a section goes whole onto a page where it fits, and where it does not it
+    fills the page and goes on under its title '(continued)' on the next; the findings ``tail`` come last.
+
+    >>> [len(p) for p in _pages([["A"] + ["a"] * 5, ["B"] + ["b"] * 9], [], 10)]
+    [10, 7]
+    """
     pages: list[list[str]] = [[]]
     for lines in sections + ([tail] if tail else []):
-        if pages[-1] and len(pages[-1]) + len(lines) > room:
+        page = pages[-1]
+        if page and len(page) + len(lines) > room and room - len(page) < 4:  # too little left to start it here
             pages.append([])
+        title = lines[0]
         for line in lines:
             if len(pages[-1]) >= room:
-                pages.append([])
+                pages.append([] if line is title or not title else [f"{title} (continued)"])
             pages[-1].append(line)
     return pages
 
@@ -440,6 +459,8 @@ def review(a: Answers, *, title: str = "Review before writing") -> bool:
     tail = [line for w in warnings for line in terminal.wrap(f"  ! {w}")]
     if problem is not None:
         tail += terminal.wrap(f"  ✗ {problem}") + ["  The machine file cannot be written until this is put right."]
+    if tail:
+        tail.insert(0, "What the machine file reader says")
     caution = terminal.wrap(CAUTION_LINE)
     room = max(terminal.rows() - len(caution) - 9, 8)  # heading, menu of up to five entries, its question, a margin
     pages = _pages(summary_lines(a), tail, room)

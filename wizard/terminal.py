@@ -47,7 +47,7 @@ def wrap(text: str, width: int | None = None, indent: str | None = None) -> list
     for paragraph in text.split("\n"):
         lead = len(paragraph) - len(paragraph.lstrip())
         mark = paragraph.lstrip()[:2]
-        sub = indent if indent is not None else " " * (lead + 2 if mark[:1] in "!✗✓=·→" and mark[1:2] == " " else lead)
+        sub = indent if indent is not None else " " * (lead + 2 if mark[:1] in "!✗✓=·→?" and mark[1:2] == " " else lead)
         lines = textwrap.wrap(paragraph, width=w, subsequent_indent=sub, break_long_words=False,
                               break_on_hyphens=False, drop_whitespace=True)
         out += lines or [""]
