@@ -244,10 +244,10 @@ def setting_changes(old_record: SettingsRecord, new_record: SettingsRecord) -> l
     for fid in _union(old_f, new_f):
         before, after = old_f.get(fid), new_f.get(fid)
         if before is None:
-            changes.append(Change(fid, "not in the study", f"added: {after.title}", f"{fid} {after.title}"))
+            changes.append(Change(fid, "not in the study", "added to the study", f"{fid} {after.title}"))
             continue
         if after is None:
-            changes.append(Change(fid, before.title, "removed from the study", f"{fid} {before.title}"))
+            changes.append(Change(fid, "in the study", "removed from the study", f"{fid} {before.title}"))
             continue
         if before.enabled != after.enabled:
             changes.append(Change(fid, _in_service(before.enabled), _in_service(after.enabled),

@@ -154,8 +154,9 @@ def test_functions_added_and_removed():
     lr = FunctionSettings("51LR", "Locked rotor", {"time_delay": Setting(12.0, "s")}, basis="")
     added = setting_changes(record([thermal(1.0, 1.0)]), record([thermal(1.0, 1.0), lr]))
     removed = setting_changes(record([thermal(1.0, 1.0), lr]), record([thermal(1.0, 1.0)]))
-    assert added == [Change("51LR", "not in the study", "added: Locked rotor")]
-    assert removed == [Change("51LR", "Locked rotor", "removed from the study")]
+    assert added == [Change("51LR", "not in the study", "added to the study")]
+    assert removed == [Change("51LR", "in the study", "removed from the study")]
+    assert added[0].name == removed[0].name == "51LR Locked rotor"
 
 
 def test_setting_added_within_a_function():

@@ -158,13 +158,14 @@ def _fold(label: str) -> str:
 # ---------------------------------------------------------------------------------------------------- prompts
 
 
-def prompt_text(message: str, instruction: str = "", typed: str = "") -> Any:
+def prompt_text(message: str, instruction: str = "", typed: str = "", room: int = 12) -> Any:
     """One line of text, Enter to submit; returns the text, or :data:`BACK` / :data:`HELP`.
 
-    ``typed`` is put back on the line (after a refusal, or when the person chose to give an answer again).
+    ``typed`` is put back on the line (after a refusal, or when the person chose to give an answer again);
+    ``room`` is the width kept free for the answer beside the question (else it starts on a line of its own).
     """
-    question = _q().text(_fit(message, instruction), default=typed, qmark="›", instruction=instruction or None,
-                         style=style())
+    question = _q().text(_fit(message, instruction, room), default=typed, qmark="›",
+                         instruction=instruction or None, style=style())
     text = _run(question, menu=False)
     if isinstance(text, Nav):
         return text
@@ -284,9 +285,10 @@ def ask(q: Question, a: Answers, say: Say = terminal.say) -> Any:
             continue
         if value is AGAIN:
             continue
-        for note in flow.understood(q, a, typed, value) if isinstance(typed, str) and s.kind not in (
-                "table", "boolean") and not q.choices else []:
-            say(f"    → {note}")
+        kept = not str(typed).strip() and a.has(q.key) and value == a.get(q.key)  # Enter kept the answer held
+        if isinstance(typed, str) and s.kind not in ("table", "boolean") and not q.choices and not kept:
+            for note in flow.understood(q, a, typed, value):
+                say(f"    → {note}")
         warnings = [f for f in flow.findings(q, a.trial(q.key, value)) if f.level == "warn"]
         if not warnings:
             return value
@@ -310,13 +312,16 @@ def _keep(say: Say) -> Any:
 def _ask_text(q: Question, a: Answers, say: Say, typed: str) -> tuple[Any, str]:
     """The typed answer, refused and asked again (with the text kept on the line) until it is acceptable."""
     clearable = _clearable(q, a)
+    room = 40 if flow.spec(q, a).kind == "text" else 12  # names and reasons are longer than quantities
     while True:
-        text = prompt_text(q.text, unit_tag(q, a) or "", typed)
+        text = prompt_text(q.text, unit_tag(q, a) or "", typed, room)
         if isinstance(text, Nav):
             return text, typed
         if clearable and text.strip() == CLEAR:
             return None, ""
         why = flow.refusal(q, a, text)
+        if why and not text.strip() and flow.is_required(q, a):
+            why = f"this question needs an answer: {flow.expected(flow.spec(q, a))} ({why.partition(':')[0]})"
         if why:
             say(f"  ✗ {why}")
             typed = text

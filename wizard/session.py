@@ -432,13 +432,16 @@ def _pages(sections: list[list[str]], tail: list[str], room: int) -> list[list[s
     fills the page and goes on under its title '(continued)' on the next; the findings ``tail`` come last.
 
     >>> [len(p) for p in _pages([["A"] + ["a"] * 5, ["B"] + ["b"] * 9], [], 10)]
-    [10, 7]
+    [6, 10]
+    >>> [len(p) for p in _pages([["A"] + ["a"] * 3, ["B"] + ["b"] * 12], [], 10)]
+    [10, 8]
     """
     pages: list[list[str]] = [[]]
     for lines in sections + ([tail] if tail else []):
         page = pages[-1]
-        if page and len(page) + len(lines) > room and room - len(page) < 4:  # too little left to start it here
-            pages.append([])
+        if page and len(page) + len(lines) > room and (len(lines) <= room and 2 * len(page) >= room
+                                                       or room - len(page) < 4):
+            pages.append([])  # a section that fits on a page of its own is not split across a page half full
         title = lines[0]
         for line in lines:
             if len(pages[-1]) >= room:

@@ -33,7 +33,8 @@ def line_width(width: int | None = None) -> int:
 def wrap(text: str, width: int | None = None, indent: str | None = None) -> list[str]:
     """``text`` as lines of at most ``width`` columns, broken between words; continuation lines indented.
 
-    The continuation indent is the line's own leading spaces, two more after a mark such as "!" or "✗".
+    An indented line continues two columns further in (a hanging indent, so the next item stands out); a line that
+    starts at the margin continues at the margin.
 
     >>> wrap("Caution: settings must be reviewed and approved by a competent, licensed engineer", 30)
     ['Caution: settings must be', 'reviewed and approved by a', 'competent, licensed engineer']
@@ -46,8 +47,7 @@ def wrap(text: str, width: int | None = None, indent: str | None = None) -> list
     out: list[str] = []
     for paragraph in text.split("\n"):
         lead = len(paragraph) - len(paragraph.lstrip())
-        mark = paragraph.lstrip()[:2]
-        sub = indent if indent is not None else " " * (lead + 2 if mark[:1] in "!✗✓=·→?" and mark[1:2] == " " else lead)
+        sub = indent if indent is not None else " " * (lead + 2 if lead else 0)
         lines = textwrap.wrap(paragraph, width=w, subsequent_indent=sub, break_long_words=False,
                               break_on_hyphens=False, drop_whitespace=True)
         out += lines or [""]
