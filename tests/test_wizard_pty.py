@@ -297,13 +297,11 @@ def test_n_at_the_last_question_of_revise_writes_nothing(tmp_path):
 # ---------------------------------------------------------------------------------------------------- layout
 
 
-pyte = pytest.importorskip("pyte")
-
-
 class Screen:
     """A terminal emulator of a given size that keeps every line that scrolled off (pexpect's read log)."""
 
     def __init__(self, cols: int, rows: int):
+        pyte = pytest.importorskip("pyte")
         self.screen = pyte.HistoryScreen(cols, rows, history=5000)
         self.stream = pyte.Stream(self.screen)
         self.cols = cols

@@ -1131,7 +1131,8 @@ def pretty_unit(unit: str) -> str:
 
 
 def pretty_quantity(text: str) -> str:
-    """A quantity as written, tidied: number, one space, the unit printed ('80K' → '80 K', '28 kg*m^2' → '28 kg·m²')."""
+    """A quantity as written, tidied: number, one space, the unit printed ('80K' → '80 K', '28 kg*m^2' →
+    '28 kg·m²')."""
     unit = written_unit(text)
     if not unit:
         return text.strip()
