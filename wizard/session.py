@@ -59,7 +59,7 @@ class _Stop(Exception):
 
 def run_new(answers: Path | None = None, output: Path | None = None, resume: Path | None = None,
             force: bool = False) -> int:
-    """``relaywright new``: interview (or answers file) → machine file → sheet → findings; returns the exit code."""
+    """``relaywright new``: interview (or answers file), machine file, sheet, findings; returns the exit code."""
     if answers is not None:
         if resume is not None:
             raise InputError("--resume", "cannot be combined with --answers (an answers file needs no draft)")
