@@ -8,6 +8,11 @@ them (six significant figures), so float noise below that is no change either.
 Sheet bookkeeping the tool manages itself (``sheet.revision``, ``sheet.date``, ``sheet.history``) is left out: a
 revision always changes them. The other sheet fields (tag, description, names, status, page size) are compared.
 
+Each change carries a label for the screen ("Full-load current", "49 Stator thermal overload · Pickup current"):
+the caller passes the labels of the input keys (the wizard's question labels); settings and derived values take
+the labels of the record. Settings keyed into the relay are kept apart from what is not keyed (derived values and
+what a setting achieves), so a reader sees first what must be re-entered into the relay.
+
 This module returns data only; ``reports.changes`` prints it.
 """
 
@@ -29,20 +34,28 @@ _STAGE_UNITS = {"frequency": "Hz", "time_delay": "s", "low": "Hz", "high": "Hz",
 
 @dataclass
 class Change:
-    """One changed item: its key path and the old and new values as display strings."""
+    """One changed item: its key path, the old and new values as display strings, and its name on screen."""
 
     key: str
     old: str
     new: str
+    label: str = field(default="", compare=False)
+
+    @property
+    def name(self) -> str:
+        """The label, else the key path."""
+        return self.label or self.key
 
 
 @dataclass
 class Changes:
-    """Everything that changed between two revisions, by kind."""
+    """Everything that changed between two revisions, by kind: inputs, settings keyed into the relay, derived
+    values (and settings not keyed); ``warnings`` when the two files are not the same machine."""
 
     inputs: list[Change] = field(default_factory=list)
     settings: list[Change] = field(default_factory=list)
     derived: list[Change] = field(default_factory=list)
+    warnings: list[str] = field(default_factory=list)
 
     @property
     def empty(self) -> bool:
@@ -56,13 +69,75 @@ class Changes:
 
 
 def compare(old_case: MachineCase, old_record: SettingsRecord, new_case: MachineCase,
-            new_record: SettingsRecord) -> Changes:
-    """The inputs, settings and derived values that differ between two studied machine files."""
+            new_record: SettingsRecord, labels: dict[str, str] | None = None) -> Changes:
+    """The inputs, settings and derived values that differ between two studied machine files.
+
+    ``labels`` names input keys on screen (``{"machine.rated_current": "Full-load current"}``); a key without one
+    is named by its words and section.
+    """
+    settings = setting_changes(old_record, new_record)
+    inputs = input_changes(old_case, new_case, old_record, new_record)
+    for c in inputs:
+        c.label = _input_label(c.key, labels or {}, new_record, old_record)
+    derived = _setting_dict_changes("derived.", old_record.derived, new_record.derived)
     return Changes(
-        inputs=input_changes(old_case, new_case, old_record, new_record),
-        settings=setting_changes(old_record, new_record),
-        derived=_setting_dict_changes("derived.", old_record.derived, new_record.derived),
+        inputs=inputs,
+        settings=[c for c in settings if not _unkeyed(c, old_record, new_record)],
+        derived=derived + [c for c in settings if _unkeyed(c, old_record, new_record)],
+        warnings=different_machines(old_case, new_case),
     )
+
+
+_KIND_NAMES = {"induction-motor": "an induction motor", "synchronous-generator": "a synchronous generator"}
+
+
+def different_machines(old_case: MachineCase, new_case: MachineCase) -> list[str]:
+    """Why two files may not be two revisions of one machine: another kind of machine, another tag."""
+    out = []
+    a, b = old_case.machine.kind, new_case.machine.kind
+    if a != b:
+        out.append(f"these are different kinds of machine: the first file is {_KIND_NAMES.get(a, a)}, the second "
+                   f"{_KIND_NAMES.get(b, b)}; every input and setting below differs for that reason")
+    elif old_case.sheet.tag != new_case.sheet.tag:
+        out.append(f"the tags differ ({old_case.sheet.tag} and {new_case.sheet.tag}): check that both files are "
+                   "the same machine")
+    return out
+
+
+def _words(name: str) -> str:
+    text = name.replace("_", " ")
+    return text[:1].upper() + text[1:]
+
+
+def _input_label(key: str, labels: dict[str, str], *records: SettingsRecord) -> str:
+    if key in labels:
+        return labels[key]
+    section, _, name = key.partition(".")
+    if section == "overrides":
+        fid, _, setting = name.partition(".")
+        return f"Override of {_setting_label(fid, setting, *records)}"
+    return f"{_words(name)} ({section})"
+
+
+def _setting_label(fid: str, name: str, *records: SettingsRecord) -> str:
+    """'49 Stator thermal overload · Pickup current': the function's title and the setting's label."""
+    for r in records:
+        f = r.function(fid) if r is not None else None
+        if f is not None:
+            s = f.settings.get(name)
+            label = (s.label if s is not None and s.label else _words(name)) if name else ""
+            return f"{fid} {f.title}" + (f" · {label}" if label else "")
+    return f"{fid} · {_words(name)}" if name else fid
+
+
+def _unkeyed(c: Change, *records: SettingsRecord) -> bool:
+    """A setting that is not keyed into the relay (equipment sized, what a setting achieves)."""
+    fid, _, name = c.key.partition(".")
+    for r in records:
+        f = r.function(fid)
+        if f is not None and name in f.settings:
+            return not f.settings[name].keyed
+    return False
 
 
 # ---------------------------------------------------------------------------------------------------- inputs
@@ -169,14 +244,17 @@ def setting_changes(old_record: SettingsRecord, new_record: SettingsRecord) -> l
     for fid in _union(old_f, new_f):
         before, after = old_f.get(fid), new_f.get(fid)
         if before is None:
-            changes.append(Change(fid, "not in the study", f"added: {after.title}"))
+            changes.append(Change(fid, "not in the study", "added to the study", f"{fid} {after.title}"))
             continue
         if after is None:
-            changes.append(Change(fid, before.title, "removed from the study"))
+            changes.append(Change(fid, "in the study", "removed from the study", f"{fid} {before.title}"))
             continue
         if before.enabled != after.enabled:
-            changes.append(Change(fid, _in_service(before.enabled), _in_service(after.enabled)))
-        changes += _setting_dict_changes(f"{fid}.", before.settings, after.settings)
+            changes.append(Change(fid, _in_service(before.enabled), _in_service(after.enabled),
+                                  f"{fid} {after.title}"))
+        for c in _setting_dict_changes(f"{fid}.", before.settings, after.settings):
+            c.label = _setting_label(fid, c.key.partition(".")[2], new_record, old_record)
+            changes.append(c)
     return changes
 
 
@@ -188,23 +266,24 @@ def _setting_dict_changes(prefix: str, old: dict[str, Setting], new: dict[str, S
     changes = []
     for name in _union(old, new):
         a, b = old.get(name), new.get(name)
+        label = next((x.label for x in (b, a) if x is not None and x.label), "") or _words(name)
         if a is None or b is None:
             changes.append(Change(prefix + name, "—" if a is None else _show_setting(a),
-                                  "—" if b is None else _show_setting(b)))
+                                  "—" if b is None else _show_setting(b), label))
             continue
         ja, jb = a.to_json(), b.to_json()
         ja.pop("label", None), jb.pop("label", None), ja.pop("note", None), jb.pop("note", None)
         if ja == jb:
             continue
         if _is_table(a.value) or _is_table(b.value):  # a derived table: say that it changed, not every cell
-            changes.append(Change(prefix + name, _rows(a.value), _rows(b.value) + ", values changed"))
+            changes.append(Change(prefix + name, _rows(a.value), _rows(b.value) + ", values changed", label))
             continue
         secondary = ja.get("secondary") != jb.get("secondary")  # the value keyed into the relay changed
         source = ja["source"] != jb["source"]
         was, now = _show_setting(a, secondary, source), _show_setting(b, secondary, source)
         if was == now:  # they differ below four figures: show the six the record keeps
             was, now = _show_setting(a, secondary, source, 6), _show_setting(b, secondary, source, 6)
-        changes.append(Change(prefix + name, was, now))
+        changes.append(Change(prefix + name, was, now, label))
     return changes
 
 

@@ -54,11 +54,15 @@ def _show(value: float, si_unit: str, unit: str) -> str:
 
 
 def parse_ratio(raw: Any, key: str, unit: str) -> Ratio:
-    """Read an instrument-transformer ratio such as ``"200/1 A"`` or ``"6600/110 V"``."""
+    """Read an instrument-transformer ratio such as ``"200/1 A"``, ``"150:5 A"`` or ``"6600/110 V"``.
+
+    >>> parse_ratio("150:5", "instruments.phase_ct", "A"), parse_ratio("150:5 A", "instruments.phase_ct", "A")
+    (Ratio(primary=150.0, secondary=5.0), Ratio(primary=150.0, secondary=5.0))
+    """
     example = "'200/1 A'" if unit == "A" else "'6600/110 V'"
     if not isinstance(raw, str):
         raise InputError(key, f"expected a ratio such as {example}, got {one_line(raw)}")
-    m = re.fullmatch(r"\s*(\d{1,7}(?:\.\d{1,6})?)\s*/\s*(\d{1,7}(?:\.\d{1,6})?)\s*([A-Za-z]{1,3})?\s*", raw)
+    m = re.fullmatch(r"\s*(\d{1,7}(?:\.\d{1,6})?)\s*[/:]\s*(\d{1,7}(?:\.\d{1,6})?)\s*([A-Za-z]{1,3})?\s*", raw)
     if not m:
         raise InputError(key, f"expected a ratio such as {example}, got {one_line(raw)}")
     primary, secondary = float(m.group(1)), float(m.group(2))
@@ -121,6 +125,8 @@ def parse_value(spec: FieldSpec, raw: Any, key: str, *, rated_current: float | N
         text = raw
         if isinstance(raw, (int, float)) and not isinstance(raw, bool):
             text = f"{raw} {default_unit or 'pu'}"
+        elif isinstance(raw, str) and re.fullmatch(r"\s*[\d.eE+-]+\s*", raw) and default_unit is None:
+            text = f"{raw.strip()} pu"  # a bare number is per-unit, as for the per-unit-only keys
         if isinstance(text, str) and re.search(r"(pu|p\.u\.|%)\s*$", text.strip()) or (
                 isinstance(text, str) and default_unit in ("pu", "%") and re.fullmatch(r"\s*[\d.eE+-]+\s*", text)):
             pu = parse_quantity(text, "per_unit", key=key, default_unit=default_unit)

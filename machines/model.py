@@ -816,6 +816,59 @@ def motor_rated_current(m: InductionMotor) -> float:
 # ---------------------------------------------------------------------------------------------------- validation
 
 
+def motor_speed_error(frequency: float, rated_speed: float) -> InputError | None:
+    """Why an induction motor's full-load speed cannot be right at this frequency, or None.
+
+    Below synchronous speed for its pole count, with a full-load slip between 0 and 10 %. The file reader and the
+    wizard (as soon as both answers are in) use this one rule.
+
+    >>> motor_speed_error(50.0, 1485 * math.pi / 30) is None
+    True
+    >>> print(motor_speed_error(60.0, 1500 * math.pi / 30))
+    machine.rated_speed: expected a full-load slip between 0 and 10 %, got 16.7% (1500 rpm)
+    """
+    f = frequency
+    ws_max = synchronous_speed(f, 2)
+    if rated_speed >= ws_max:
+        return InputError(
+            "machine.rated_speed",
+            f"expected below the 2-pole synchronous speed "
+            f"{120 * f:.0f} rpm at {f:g} Hz, got {rated_speed * 30 / math.pi:.0f} rpm",
+        )
+    rpm = rated_speed * 30.0 / math.pi
+    near = generator_poles(f, rated_speed)
+    if rpm >= 120.0 * f / near:
+        return InputError(
+            "machine.rated_speed",
+            f"expected a full-load speed below synchronous speed "
+            f"({120 * f / near:.0f} rpm for {near} poles at {f:g} Hz), got {rpm:.0f} rpm",
+        )
+    s = rated_slip(f, rated_speed)
+    if not 0.0 < s < 0.1:
+        return InputError(
+            "machine.rated_speed", f"expected a full-load slip between 0 and 10 %, got {s:.1%} ({rpm:.0f} rpm)"
+        )
+    return None
+
+
+def generator_speed_error(frequency: float, rated_speed: float) -> InputError | None:
+    """Why a synchronous machine's rated speed is not a synchronous speed 120·f/p at this frequency, or None.
+
+    >>> generator_speed_error(50.0, 1500 * math.pi / 30) is None
+    True
+    >>> print(generator_speed_error(60.0, 1500 * math.pi / 30))
+    machine.rated_speed: expected a synchronous speed 120·f/p at 60 Hz (e.g. 1800 rpm), got 1500.0 rpm
+    """
+    ws = synchronous_speed(frequency, generator_poles(frequency, rated_speed))
+    if abs(rated_speed / ws - 1.0) > 0.005:
+        return InputError(
+            "machine.rated_speed",
+            f"expected a synchronous speed 120·f/p at {frequency:g} Hz "
+            f"(e.g. {ws * 30 / math.pi:.0f} rpm), got {rated_speed * 30 / math.pi:.1f} rpm",
+        )
+    return None
+
+
 def validate_case(case: MachineCase) -> list[str]:
     """Check physical sense across fields. Raises InputError for the impossible; returns warnings."""
     warnings: list[str] = []
@@ -925,27 +978,9 @@ def _validate_motor(m: InductionMotor) -> list[str]:
             f"expected at most the cold safe stall time "
             f"({m.safe_stall_time_cold:.4g} s), got {m.safe_stall_time_hot:.4g} s",
         )
-    f = m.frequency
-    ws_max = synchronous_speed(f, 2)
-    if m.rated_speed >= ws_max:
-        raise InputError(
-            "machine.rated_speed",
-            f"expected below the 2-pole synchronous speed "
-            f"{120 * f:.0f} rpm at {f:g} Hz, got {m.rated_speed * 30 / math.pi:.0f} rpm",
-        )
-    rpm = m.rated_speed * 30.0 / math.pi
-    near = generator_poles(f, m.rated_speed)
-    if rpm >= 120.0 * f / near:
-        raise InputError(
-            "machine.rated_speed",
-            f"expected a full-load speed below synchronous speed "
-            f"({120 * f / near:.0f} rpm for {near} poles at {f:g} Hz), got {rpm:.0f} rpm",
-        )
-    s = rated_slip(f, m.rated_speed)
-    if not 0.0 < s < 0.1:
-        raise InputError(
-            "machine.rated_speed", f"expected a full-load slip between 0 and 10 %, got {s:.1%} ({rpm:.0f} rpm)"
-        )
+    speed_error = motor_speed_error(m.frequency, m.rated_speed)
+    if speed_error is not None:
+        raise speed_error
     if m.breakdown_torque <= 1.0:
         raise InputError("machine.breakdown_torque", "expected more than 1 pu of rated torque")
     if m.starts_hot > m.starts_cold:
@@ -1038,13 +1073,9 @@ def _validate_generator(g: SynchronousGenerator) -> list[str]:
             f"expected xd'' ≤ xd' ≤ xd, got {g.xd_subtransient:g} / {g.xd_transient:g} / {g.xd:g} pu",
         )
     poles = generator_poles(g.frequency, g.rated_speed)
-    ws = synchronous_speed(g.frequency, poles)
-    if abs(g.rated_speed / ws - 1.0) > 0.005:
-        raise InputError(
-            "machine.rated_speed",
-            f"expected a synchronous speed 120·f/p at {g.frequency:g} Hz "
-            f"(e.g. {ws * 30 / math.pi:.0f} rpm), got {g.rated_speed * 30 / math.pi:.1f} rpm",
-        )
+    speed_error = generator_speed_error(g.frequency, g.rated_speed)
+    if speed_error is not None:
+        raise speed_error
     for name in ("capability", "uel"):
         rows = getattr(g, name)
         ps = [r.active_power for r in rows]

@@ -71,6 +71,20 @@ _POWER = r"(?:(?:\^|\*\*)-?[1-4])?"
 _UNIT = re.compile(rf"{_NAME}{_POWER}(?:\s*[*/·]\s*{_NAME}{_POWER}|\s+{_NAME}{_POWER}){{0,5}}")
 _SUPERSCRIPTS = str.maketrans({"²": "^2", "³": "^3", "⁻": "-", "¹": "^1"})
 _ALIASES = {"p.u.": "pu", "p.u": "pu", "Ohm": "ohm", "ohms": "ohm", "Ohms": "ohm", "r/min": "rpm", "RPM": "rpm"}
+#: a hyphen between two unit names is a product, as in "lb-ft²" (pound-foot squared) or "N-m"
+_HYPHEN_PRODUCT = re.compile(r"(?<=[A-Za-zµμΩ°])-(?=[A-Za-zµμΩ°])")
+#: how people write a temperature rise in degrees: a rise of 80 °C is a rise of 80 K (a difference, not a
+#: temperature); "C" alone is the coulomb to pint, but no one gives a temperature rise in coulombs
+_RISE_UNITS = {
+    **dict.fromkeys(("C", "°C", "ºC", "degC", "deg C", "deg_C", "Celsius", "celsius", "degree_Celsius",
+                     "degrees C", "degree C"), "delta_degC"),
+    **dict.fromkeys(("°F", "ºF", "degF", "deg F", "Fahrenheit", "fahrenheit", "degree_Fahrenheit"), "delta_degF"),
+}
+#: what a per-unit (or a ratio) may be written in; other dimensionless units (degrees, radians, turns) are angles
+#: or counts, never per-unit: "25.8 deg" for a power factor is refused, not read as 0.45
+_PER_UNIT_NAMES = {"per_unit", "percent", "permille", "dimensionless"}
+_ANGLE_NAMES = ("degree", "radian", "arcminute", "arcsecond", "turn", "revolution", "gradian", "grade", "steradian",
+                "cycle")
 
 
 @lru_cache(maxsize=1)
@@ -207,9 +221,9 @@ def parse_quantity(
         else:
             raise _fail(key, shown, "the unit is missing", kind)
 
-    unit_text = _ALIASES.get(unit_text, unit_text).translate(_SUPERSCRIPTS)
-    if kind.name == "temperature_rise":  # a rise is a difference: 80 degC of rise is 80 K
-        unit_text = re.sub(r"\bdeg([CF])\b", r"delta_deg\1", unit_text)
+    unit_text = _HYPHEN_PRODUCT.sub("*", _ALIASES.get(unit_text, unit_text).translate(_SUPERSCRIPTS))
+    if kind.name == "temperature_rise":  # a rise is a difference: 80 °C of rise is 80 K
+        unit_text = _RISE_UNITS.get(unit_text, unit_text)
     if not _UNIT.fullmatch(unit_text):
         raise _fail(key, shown, f"'{unit_text[:30]}' is not a unit this tool reads", kind)
     try:
@@ -224,6 +238,14 @@ def parse_quantity(
         what = next((noun for ref, noun in _NOUNS if _dimensionality(ref) == dim), "a quantity of another kind")
         raise _fail(key, shown, f"{one_line(shown)} is {what}{_case_hint(unit_text, kind)}", kind)
     unit_names = str(units)
+    if kind.name == "per_unit" and unit_names not in _PER_UNIT_NAMES:
+        if any(name in unit_names for name in _ANGLE_NAMES):
+            tip = ""
+            if key.endswith("power_factor") and unit_names in ("degree", "radian"):
+                phi = float(ureg.Quantity(value, units).m_as("radian"))
+                tip = f"; a power factor is cos φ (the cosine of {one_line(shown.strip())} is {math.cos(phi):.3f})"
+            raise _fail(key, shown, f"{one_line(shown)} is an angle, not a per-unit value or a ratio{tip}", kind)
+        raise _fail(key, shown, f"'{unit_text[:30]}' is not a per-unit unit (write pu or %)", kind)
     if kind.name == "apparent_power" and "volt_ampere" not in unit_names:
         raise _fail(key, shown, "an apparent power is written in VA, kVA or MVA", kind)
     if kind.name == "active_power" and "volt_ampere" in unit_names:
@@ -242,3 +264,114 @@ def parse_quantity(
     if result == 0 and not allow_zero:
         raise _fail(key, shown, "zero is impossible here", kind)
     return result
+
+
+_ISO_DATE = re.compile(r"\d{4}-\d{2}-\d{2}")
+
+
+def parse_date(text: object, key: str = "") -> str:
+    """A calendar date written year-month-day (ISO 8601, e.g. ``"2026-11-20"``); returned in that form.
+
+    Day-month and month-day forms such as ``"02/12/2026"`` are refused: the same text means 2 December in most of
+    the world and February 12 in the United States, and a settings sheet must not be read two ways.
+
+    >>> parse_date(" 2026-11-20 ")
+    '2026-11-20'
+    >>> parse_date("02/12/2026", "sheet.date")
+    Traceback (most recent call last):
+    ...
+    machines.errors.InputError: sheet.date: '02/12/2026' can be read two ways (day/month or month/day); expected \
+an ISO date year-month-day such as '2026-11-20'
+    """
+    import datetime as _dt
+
+    example = "expected an ISO date year-month-day such as '2026-11-20'"
+    if not isinstance(text, str):
+        if isinstance(text, _dt.date):  # a TOML date literal
+            return text.isoformat()
+        raise InputError(key, f"{example}, got {one_line(text)}")
+    s = text.strip()
+    if re.fullmatch(r"\d{1,2}[./-]\d{1,2}[./-]\d{2,4}", s):
+        raise InputError(key, f"{one_line(text)} can be read two ways (day/month or month/day); {example}")
+    if not _ISO_DATE.fullmatch(s):
+        raise InputError(key, f"{example}, got {one_line(text)}")
+    try:
+        return _dt.date.fromisoformat(s).isoformat()
+    except ValueError:
+        raise InputError(key, f"{one_line(text)} is not a day of the calendar; {example}") from None
+
+
+def parse_fault_level(text: str | int | float, line_voltage: float | None, *, key: str = "") -> tuple[float, str]:
+    """A three-phase fault level [VA], written as an apparent power (``"250 MVA"``) or, with the bus voltage known,
+    as the fault current (``"25 kA"``: S = √3·U_n·I_k, IEC 60909-0). Returns the value and how it was read ('' when
+    it was written as a power).
+
+    >>> s, note = parse_fault_level("25 kA", 6600.0)
+    >>> round(s / 1e6, 1), note
+    (285.8, '25 kA at 6.6 kV = 285.8 MVA')
+    >>> parse_fault_level("250 MVA", None)
+    (250000000.0, '')
+    """
+    from machines.standards.fault_current import three_phase_fault_current
+
+    try:
+        return parse_quantity(text, "apparent_power", key=key), ""
+    except InputError as as_power:
+        try:
+            current = parse_quantity(text, "current", key=key)
+        except InputError:
+            raise as_power from None
+    if line_voltage is None:
+        raise InputError(key, f"{one_line(text)} is a fault current; with no bus voltage known it cannot be turned "
+                              "into a fault level: give it in MVA, e.g. '250 MVA'")
+    level = current / three_phase_fault_current(1.0, line_voltage)  # S = √3·U_n·I_k
+    return level, f"{str(text).strip()} at {line_voltage / 1e3:.4g} kV = {level / 1e6:.4g} MVA"
+
+
+def rise_note(text: object) -> str:
+    """How a temperature rise written in degrees was read ('' when it was written in kelvin).
+
+    >>> rise_note("80 C")
+    "'80 C' read as a temperature rise of 80 K"
+    >>> rise_note("80 K")
+    ''
+    """
+    if not isinstance(text, str):
+        return ""
+    m = _NUMBER.match(text.strip())
+    unit = text.strip()[m.end():].strip() if m else ""
+    if _RISE_UNITS.get(unit) is None:
+        return ""
+    return f"{one_line(text.strip())} read as a temperature rise of {parse_quantity(text, 'temperature_rise'):.4g} K"
+
+
+def written_unit(text: object) -> str:
+    """The unit of a quantity as written, '' for a bare number or text that does not start with a number.
+
+    >>> written_unit("1500 hp"), written_unit(" 80K"), written_unit("6.2"), written_unit(0.89)
+    ('hp', 'K', '', '')
+    """
+    if not isinstance(text, str):
+        return ""
+    s = text.strip()
+    m = _NUMBER.match(s)
+    return s[m.end():].strip() if m else ""
+
+
+_PREFIXES = re.compile(r"\b(?:yotta|zetta|exa|peta|tera|giga|mega|kilo|hecto|deca|deci|centi|milli|micro|nano|pico)")
+
+
+def same_unit(a: str, b: str) -> bool:
+    """Whether two written units name the same unit up to an SI prefix and spelling ('kV' and 'V', 'sec' and 's').
+
+    >>> same_unit("sec", "s"), same_unit("kV", "V"), same_unit("hp", "kW"), same_unit("lb*ft^2", "kg*m^2")
+    (True, True, False, False)
+    """
+    if a == b:
+        return True
+    try:
+        names = [_PREFIXES.sub("", str(_parse_units(_HYPHEN_PRODUCT.sub("*", _ALIASES.get(u, u).translate(
+            _SUPERSCRIPTS)), False))) for u in (a, b)]
+    except Exception:  # pint raises several types; an unreadable unit is not the same as any other
+        return False
+    return names[0] == names[1]

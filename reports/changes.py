@@ -1,56 +1,32 @@
-"""What changed between two revisions, on screen: plain lines or a table, old → new.
+"""What changed between two revisions, as lines for the screen: grouped, labelled, old → new.
 
-Layout only; :func:`machines.compare.compare` finds the changes.
+Layout only; :func:`machines.compare.compare` finds the changes. Settings to key into the relay come first (what a
+technician must re-enter), then the inputs that changed, then derived values and what is not keyed. The lines are
+not cut to any width: the caller wraps them at word boundaries to its terminal.
 """
 
 from __future__ import annotations
 
 NO_CHANGES = "no changes"
-_GROUPS = (("inputs", "Inputs"), ("settings", "Settings"), ("derived", "Derived values"))
+GROUPS = (("settings", "Settings to key into the relay"), ("inputs", "Inputs"),
+          ("derived", "Derived values (not keyed into the relay)"))
 
 
 def format_changes(changes) -> list[str]:
-    """One plain line per change, ``"machine.rated_current: 186 A → 190 A"``; ``["no changes"]`` when empty.
+    """The changes as lines: warnings first, then each group with a heading and one line per change.
 
     >>> from machines.compare import Change, Changes
-    >>> format_changes(Changes(inputs=[Change("machine.rated_current", "186 A", "190 A")]))
-    ['machine.rated_current: 186 A → 190 A']
+    >>> format_changes(Changes(inputs=[Change("machine.rated_current", "186 A", "190 A", "Full-load current")]))
+    ['Inputs (1):', '  Full-load current: 186 A → 190 A']
     >>> format_changes(Changes())
     ['no changes']
     """
+    lines = [f"warning: {w}" for w in changes.warnings]
     if changes.empty:
-        return [NO_CHANGES]
-    return [f"{c.key}: {c.old} → {c.new}" for c in changes]
-
-
-def print_changes(changes, console=None) -> None:
-    """Print the changes as a table grouped into inputs, settings and derived values (or "no changes")."""
-    from rich.console import Console
-    from rich.table import Table
-
-    console = console or Console(highlight=False)
-    if changes.empty:
-        console.print(NO_CHANGES)
-        return
-    table = Table(show_header=True, header_style="bold", box=None, pad_edge=False)
-    table.add_column("changed")
-    table.add_column("was")
-    table.add_column("")
-    table.add_column("now", style="bold")
-    for attr, title in _GROUPS:
+        return lines + [NO_CHANGES]
+    for attr, title in GROUPS:
         items = getattr(changes, attr)
-        if not items:
-            continue
-        table.add_row(f"[underline]{title}[/underline]", "", "", "")
-        for c in items:
-            table.add_row(_plain(c.key), _plain(c.old), "→", _plain(c.new))
-    console.print(table)
-    counts = ", ".join(f"{len(getattr(changes, a))} {t.lower()}" for a, t in _GROUPS if getattr(changes, a))
-    console.print(f"{sum(1 for _ in changes)} changes ({counts})")
-
-
-def _plain(text: str):
-    """A user string as rich text that is never parsed as markup."""
-    from rich.text import Text
-
-    return Text(text)
+        if items:
+            lines.append(f"{title} ({len(items)}):")
+            lines += [f"  {c.name}: {c.old} → {c.new}" for c in items]
+    return lines

@@ -39,7 +39,7 @@ phase_ct = "100/5"
 
 @pytest.fixture(autouse=True)
 def no_sheet(monkeypatch):
-    monkeypatch.setattr(session, "_sheet", lambda path: None)
+    monkeypatch.setattr(session, "_sheet_target", lambda path: None)
 
 
 def test_a_partial_answers_file_takes_the_flows_defaults(tmp_path):
@@ -84,9 +84,26 @@ def test_running_it_twice_is_harmless_but_a_different_file_is_never_replaced(tmp
 def test_a_missing_answer_without_a_default_names_the_key(tmp_path, drop, key):
     answers = tmp_path / "a.toml"
     answers.write_text(PARTIAL_MOTOR.replace(drop, ""))
-    with pytest.raises(InputError, match=rf"^\S*a\.toml: {key}: required key is missing"):
+    with pytest.raises(InputError, match=rf"^\S*a\.toml: 1 required answer is missing: {key} \("):
         session.run_new(answers=answers, output=tmp_path / "m.toml")
     assert not (tmp_path / "m.toml").exists()
+
+
+def test_every_missing_answer_is_named_at_once(tmp_path):
+    answers = tmp_path / "a.toml"
+    text = PARTIAL_MOTOR
+    for line in ('tag = "HX-P-7"\n', 'rated_output = "373 kW"\n', 'safe_stall_time_hot = "15 s"\n',
+                 'phase_ct = "100/5"\n'):
+        text = text.replace(line, "")
+    answers.write_text(text)
+    with pytest.raises(InputError) as err:
+        session.run_new(answers=answers, output=tmp_path / "m.toml")
+    message = str(err.value)
+    assert message.startswith(f"{answers}: 4 required answers are missing: ")
+    for key in ("sheet.tag (text)", "machine.rated_output (active power such as '1500 hp')",
+                "machine.safe_stall_time_hot (time such as '12 s')", "instruments.phase_ct"):
+        assert key in message
+    assert "\n" not in message and "nothing was written" in message
 
 
 @pytest.mark.parametrize("line, message", [
@@ -102,13 +119,64 @@ def test_a_bad_answer_gets_the_file_readers_message(tmp_path, line, message):
         session.run_new(answers=answers, output=tmp_path / "m.toml")
 
 
-def test_the_command_line_exits_2_naming_the_missing_key(tmp_path):
+def test_the_command_line_exits_2_naming_every_missing_key_in_one_line(tmp_path):
     answers = tmp_path / "a.toml"
-    answers.write_text(PARTIAL_MOTOR.replace('rated_voltage = "4160 V"\n', ""))
+    answers.write_text(PARTIAL_MOTOR.replace('rated_voltage = "4160 V"\n', "").replace('tag = "HX-P-7"\n', ""))
     r = run_cli("new", "--answers", str(answers), "-o", str(tmp_path / "m.toml"))
     assert r.returncode == 2
-    assert r.stderr.startswith(f"error: {answers}: machine.rated_voltage: required key is missing")
+    # the bus voltage, whose default is the rated voltage, is missing with it
+    assert r.stderr.startswith(f"error: {answers}: 3 required answers are missing: sheet.tag")
+    assert "supply.nominal_voltage" in r.stderr
+    assert "machine.rated_voltage (voltage such as '6.6 kV')" in r.stderr
     assert len(r.stderr.strip().splitlines()) == 1
+    assert not (tmp_path / "m.toml").exists()
+
+
+def test_an_existing_file_is_replaced_only_with_force(tmp_path):
+    answers, out = tmp_path / "a.toml", tmp_path / "m.toml"
+    answers.write_text(PARTIAL_MOTOR)
+    out.write_text("# someone else's machine file\n")
+    r = run_cli("new", "--answers", str(answers), "-o", str(out))
+    assert r.returncode == 2 and "not replaced" in r.stderr and "--force" in r.stderr
+    assert out.read_text() == "# someone else's machine file\n"
+    assert session.run_new(answers=answers, output=out, force=True) == 0
+    assert load_case(out)[0].sheet.tag == "HX-P-7"
+
+
+def test_force_never_replaces_a_higher_revision(tmp_path):
+    answers, out = tmp_path / "a.toml", tmp_path / "m.toml"
+    answers.write_text(PARTIAL_MOTOR)
+    text = (EXAMPLES / "chiller-compressor-motor.toml").read_text().replace("revision = 1", "revision = 3")
+    out.write_text(text)
+    with pytest.raises(InputError, match="holds revision 3, newer than the revision 0"):
+        session.run_new(answers=answers, output=out, force=True)
+    assert out.read_text() == text
+
+
+def test_an_existing_sheet_is_not_replaced_without_force(tmp_path, monkeypatch, capsys):
+    made = []
+    monkeypatch.setattr(session, "_sheet_target", lambda path: (lambda p: made.append(p) or 0,
+                                                                tmp_path / "HX-P-7-rev0.pdf"))
+    answers, out = tmp_path / "a.toml", tmp_path / "m.toml"
+    answers.write_text(PARTIAL_MOTOR)
+    (tmp_path / "HX-P-7-rev0.pdf").write_bytes(b"%PDF- an earlier sheet")
+    session.run_new(answers=answers, output=out)
+    assert made == [] and (tmp_path / "HX-P-7-rev0.pdf").read_bytes() == b"%PDF- an earlier sheet"
+    assert "already exists and is not replaced" in " ".join(capsys.readouterr().out.split())
+    session.run_new(answers=answers, output=out, force=True)
+    assert made == [out]
+
+
+def test_new_ends_with_the_findings_and_the_settings_exit_code(tmp_path, capsys):
+    answers, out = tmp_path / "a.toml", tmp_path / "m.toml"
+    # a hot stall time shorter than the start: the study fails its check (METHODS.md §3), as 'settings' does
+    answers.write_text(PARTIAL_MOTOR.replace('safe_stall_time_cold = "20 s"', 'safe_stall_time_cold = "5 s"')
+                       .replace('safe_stall_time_hot = "15 s"', 'safe_stall_time_hot = "1 s"'))
+    code = session.run_new(answers=answers, output=out)
+    text = " ".join(capsys.readouterr().out.split())
+    r = run_cli("settings", str(out))
+    assert code == r.returncode == 1
+    assert "Findings: " in text and "failed" in text and "✗" in text
 
 
 def test_without_a_terminal_and_without_answers_it_says_so_and_exits_2(tmp_path):

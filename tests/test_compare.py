@@ -7,6 +7,7 @@ The equivalences checked here are unit definitions, not the project's own number
 from __future__ import annotations
 
 import copy
+import re
 import tomllib
 from pathlib import Path
 
@@ -16,7 +17,7 @@ from machines.compare import ABSENT, Change, Changes, compare, input_changes, se
 from machines.files import case_from_dict
 from machines.record import Check, FunctionSettings, Setting, SettingsRecord
 from machines.study import run_study
-from reports.changes import format_changes, print_changes
+from reports.changes import format_changes
 
 EXAMPLE = Path(__file__).resolve().parents[1] / "examples" / "chiller-compressor-motor.toml"
 
@@ -48,7 +49,10 @@ def test_same_file_has_no_changes(base):
 def test_changed_rating_is_shown_as_entered(base):
     changes = compare(*studied(base), *studied(edited(base, machine={"rated_current": "190 A"})))
     assert Change("machine.rated_current", "186 A", "190 A") in changes.inputs
-    assert "machine.rated_current: 186 A → 190 A" in format_changes(changes)
+    assert "  Rated current (machine): 186 A → 190 A" in format_changes(changes)
+    labelled = compare(*studied(base), *studied(edited(base, machine={"rated_current": "190 A"})),
+                       labels={"machine.rated_current": "Full-load current"})
+    assert "  Full-load current: 186 A → 190 A" in format_changes(labelled)
 
 
 @pytest.mark.parametrize("section, key, one, other", [
@@ -150,8 +154,9 @@ def test_functions_added_and_removed():
     lr = FunctionSettings("51LR", "Locked rotor", {"time_delay": Setting(12.0, "s")}, basis="")
     added = setting_changes(record([thermal(1.0, 1.0)]), record([thermal(1.0, 1.0), lr]))
     removed = setting_changes(record([thermal(1.0, 1.0), lr]), record([thermal(1.0, 1.0)]))
-    assert added == [Change("51LR", "not in the study", "added: Locked rotor")]
-    assert removed == [Change("51LR", "Locked rotor", "removed from the study")]
+    assert added == [Change("51LR", "not in the study", "added to the study")]
+    assert removed == [Change("51LR", "in the study", "removed from the study")]
+    assert added[0].name == removed[0].name == "51LR Locked rotor"
 
 
 def test_setting_added_within_a_function():
@@ -193,14 +198,42 @@ def test_show_value_stages():
         "57.5 Hz / 10 s; 57 Hz / 0.5 s"
 
 
-def test_print_changes_table_and_empty(capsys):
-    from rich.console import Console
+def test_settings_to_rekey_come_first_then_inputs_then_derived_values(base):
+    changes = compare(*studied(base), *studied(edited(base, machine={"rated_current": "190 A"})))
+    lines = format_changes(changes)
+    heads = [line for line in lines if not line.startswith("  ")]
+    assert heads[0].startswith("Settings to key into the relay") and heads[1].startswith("Inputs")
+    assert heads[-1].startswith("Derived values (not keyed into the relay)")
+    body = [line for line in lines if line.startswith("  ")]
+    # labels, not internal keys; no two lines alike (nothing cut into duplicates)
+    assert not any(re.match(r"\s+[\w.]*\.[a-z]+_[\w.]*:", line) for line in body)  # no 'derived.xyz_abc:' key
+    assert len(body) == len(set(body))
+    assert any(line.startswith("  49 ") and "Pickup" in line for line in body)
 
-    console = Console(width=120, force_terminal=False, color_system=None)
-    print_changes(Changes(inputs=[Change("sheet.tag", "M-1 [spare]", "M-2")]), console=console)
-    out = capsys.readouterr().out
-    assert "sheet.tag" in out and "→" in out and "M-2" in out
-    assert "M-1 [spare]" in out  # user text is never read as markup
-    print_changes(Changes(), console=console)
-    assert "no changes" in capsys.readouterr().out
 
+def test_a_setting_not_keyed_goes_with_the_derived_values():
+    old = record([FunctionSettings("59N", "Stator earth fault", {
+        "coverage": Setting(0.95, "pu", "derived", label="Winding covered", keyed=False),
+        "pickup_voltage": Setting(5.0, "V", label="Pickup voltage")}, basis="")])
+    new = record([FunctionSettings("59N", "Stator earth fault", {
+        "coverage": Setting(0.9, "pu", "derived", label="Winding covered", keyed=False),
+        "pickup_voltage": Setting(10.0, "V", label="Pickup voltage")}, basis="")])
+    from machines.files import case_from_dict as read
+
+    case, _ = read(tomllib.loads(EXAMPLE.read_text("utf-8")))
+    changes = compare(case, old, case, new)
+    assert [c.name for c in changes.settings] == ["59N Stator earth fault · Pickup voltage"]
+    assert [c.name for c in changes.derived] == ["59N Stator earth fault · Winding covered"]
+
+
+def test_different_kinds_of_machine_are_warned(base):
+    gen = tomllib.loads((EXAMPLE.parent / "gas-engine-generator.toml").read_text("utf-8"))
+    changes = compare(*studied(base), *studied(gen))
+    assert changes.warnings and "different kinds of machine" in changes.warnings[0]
+    assert format_changes(changes)[0].startswith("warning: these are different kinds of machine")
+
+
+def test_user_text_is_printed_as_it_is(base):
+    lines = format_changes(Changes(inputs=[Change("sheet.tag", "M-1 [spare]", "M-2", "Tag")]))
+    assert lines == ["Inputs (1):", "  Tag: M-1 [spare] → M-2"]
+    assert format_changes(Changes()) == ["no changes"]

@@ -53,7 +53,7 @@ def test_every_example_reads_and_validates():
     ("machine.rated_curent", "96 A", "machine.rated_curent", r"unknown key \(did you mean 'rated_current'\?\)"),
     ("supply.starter", "contactor", "supply.starter", r"expected one of breaker, fused-contactor"),
     ("instruments.phase_ct", "0/5 A", "instruments.phase_ct", r"positive primary and secondary"),
-    ("instruments.phase_ct", "250:5", "instruments.phase_ct", r"expected a ratio such as '200/1 A'"),
+    ("instruments.phase_ct", "250-5", "instruments.phase_ct", r"expected a ratio such as '200/1 A'"),
     ("instruments.vt", "4200/120 A", "instruments.vt", r"ratio in V"),
     ("machine.starts_cold", 2.5, "machine.starts_cold", r"expected a whole number"),
     ("machine.locked_rotor_code", "I", "machine.locked_rotor_code", r"NEMA MG 1 code letter"),

@@ -258,4 +258,166 @@ def test_review_rows_follow_the_sections():
     assert titles == ["Identification", "Nameplate and maker's data", "Driven load", "Supply and starter",
                       "Grounding", "Instrument transformers", "Curves and tables"]
     rows = dict(flow.review_rows(a)[1][1])
-    assert rows["Rated output"] == "1500 hp" and rows["Temperature rise"] == "80 K"
+    # normalised: in the unit the question is asked in, with the form written where it differs
+    assert rows["Rated output"] == "1119 kW (1500 hp)" and rows["Temperature rise"] == "80 K"
+    assert rows["Locked-rotor current"] == "1153 A (6.2 pu)"  # 6.2 × 186 A
+    assert dict(flow.review_rows(a)[2][1])["Load inertia"] == "67.42 kg·m² (1600 lb·ft²)"  # NIST SP 811, B.8
+
+
+# ---------------------------------------------------------------------------------------------------- checks at once
+
+
+def nameplate(**extra) -> Answers:
+    return answers(machine={**MOTOR, "rated_output": "373 kW", "rated_voltage": "4160 V", "efficiency": "0.95",
+                            "power_factor": "0.88", **extra})
+
+
+def test_a_speed_that_does_not_fit_the_frequency_is_refused_as_soon_as_it_is_given():
+    a = nameplate(frequency="60 Hz")
+    q = flow.find("machine.rated_speed", a)
+    # 1500 rpm at 60 Hz: the nearest synchronous speed is 1800 rpm (120·f/p, p = 4), a slip of 16.7 %
+    assert flow.refusal(q, a, "1500") == ("machine.rated_speed: expected a full-load slip between 0 and 10 %, got "
+                                          "16.7% (1500 rpm)")
+    assert flow.refusal(q, a, "1785") is None
+
+
+def test_a_generator_speed_must_be_synchronous_at_once():
+    a = answers(machine={**GENERATOR, "frequency": "50 Hz"})
+    q = flow.find("machine.rated_speed", a)
+    assert "expected a synchronous speed 120·f/p at 50 Hz" in flow.refusal(q, a, "1480")
+    assert flow.refusal(q, a, "1500") is None
+
+
+def test_a_changed_frequency_warns_about_the_speed_given_before():
+    a = nameplate(frequency="50 Hz", rated_speed="1485 rpm")
+    q = flow.find("machine.frequency", a)
+    (f,) = flow.findings(q, a.trial(q.key, "60 Hz"))
+    assert f.level == "warn" and "machine.rated_speed" in f.message and "review" in f.message
+
+
+def test_a_ct_primary_below_the_full_load_current_is_warned_at_once():
+    # 373 kW, 4160 V, η 0.95, pf 0.88 → 61.92 A (METHODS.md §3.4); a 50/5 A CT carries 124 % at full load
+    a = nameplate()
+    q = flow.find("instruments.phase_ct", a)
+    (f,) = flow.findings(q, a.trial(q.key, "50/5 A"))
+    assert f.level == "warn" and "124% of the 50/5 A CT's primary" in f.message
+    # 62 A on a 300/5 A CT is 21 %: below the half the study asks for (machines.protection.ct_check)
+    (f,) = flow.findings(q, a.trial(q.key, "300/5 A"))
+    assert "only 21%" in f.message
+    assert flow.findings(q, a.trial(q.key, "100/5 A")) == []
+
+
+@pytest.mark.parametrize("key, typed, other, message", [
+    ("machine.locked_rotor_current", "1.5", {}, "expected at least 2 pu of rated current"),
+    ("machine.breakdown_torque", "1.0", {}, "expected more than 1 pu of rated torque"),
+])
+def test_answers_the_file_reader_refuses_are_refused_at_once(key, typed, other, message):
+    a = nameplate(**other)
+    a.flow["makers_data"] = True
+    assert message in flow.refusal(flow.find(key, a), a, typed)
+
+
+def test_fault_levels_in_order_and_the_bus_voltage_near_the_rating():
+    a = nameplate()
+    a.set("supply.fault_level", "250 MVA")
+    assert "expected at most the maximum fault level (250 MVA)" in flow.refusal(
+        flow.find("supply.minimum_fault_level", a), a, "300 MVA")
+    q = flow.find("supply.nominal_voltage", a)
+    (f,) = flow.findings(q, a.trial(q.key, "13.8 kV"))
+    assert f.level == "warn" and "more than 15 %" in f.message
+
+
+def test_more_starts_from_hot_than_from_cold_is_warned():
+    a = nameplate(starts_cold=2)
+    a.flow["makers_data"] = True
+    q = flow.find("machine.starts_hot", a)
+    (f,) = flow.findings(q, a.trial(q.key, 3))
+    assert f.level == "warn" and "3 starts from hot but 2 from cold" in f.message
+
+
+# ---------------------------------------------------------------------------------------------------- forms
+
+
+def test_forms_people_write_go_into_the_file_as_the_reader_keeps_them():
+    a = nameplate()
+    a.set("supply.nominal_voltage", "6.6 kV")
+    # IEC 60909-0: S = √3·U·I: 25 kA at 6.6 kV = 285.8 MVA
+    assert flow.accept(flow.find("supply.fault_level", a), a, "25 kA") == "285.8 MVA"
+    assert flow.accept(flow.find("machine.temperature_rise", a), a, "80 C") == "80 K"
+    assert flow.accept(flow.find("machine.temperature_rise", a), a, "80 °C") == "80 K"
+    assert flow.accept(flow.find("instruments.phase_ct", a), a, "150:5") == "150/5 A"
+    assert flow.accept(flow.find("instruments.phase_ct", a), a, "150:5 A") == "150/5 A"
+    assert flow.accept(flow.find("sheet.date", a), a, "2026-11-20") == "2026-11-20"
+    g = answers(machine={**GENERATOR, "rated_apparent_power": "12.5 MVA", "power_factor": "0.8"})
+    # 15 % of the rated 10 MW (12.5 MVA × 0.8) = 1.5 MW
+    q = flow.find("machine.motoring_power", g)
+    assert flow.accept(q, g, "15 %") == "1500 kW"
+    assert flow.understood(q, g, "15 %", "1500 kW") == ["15 % of the rated 10000 kW (12500 kVA × 0.8) = 1500 kW"]
+
+
+@pytest.mark.parametrize("key, typed, message", [
+    ("sheet.date", "02/12/2026", "can be read two ways"),
+    ("machine.power_factor", "25.8 deg", "is an angle, not a per-unit value or a ratio"),
+    ("load.breakaway_torque", "5 deg", "is an angle"),
+])
+def test_forms_that_read_two_ways_or_are_angles_are_refused(key, typed, message):
+    a = nameplate()
+    assert message in flow.refusal(flow.find(key, a), a, typed)
+
+
+def test_a_fault_current_without_the_bus_voltage_is_refused_saying_why():
+    a = nameplate()
+    assert "with no bus voltage known" in flow.refusal(flow.find("supply.fault_level", a), a, "25 kA")
+
+
+def test_a_share_of_the_rating_before_the_rating_is_known_is_refused():
+    g = answers(machine=GENERATOR)
+    assert "give kW" in flow.refusal(flow.find("machine.motoring_power", g), g, "15 %")
+
+
+@pytest.mark.parametrize("key, typed, said", [
+    ("machine.rated_output", "800 hp", "800 hp = 596.6 kW"),  # NIST SP 811, B.8: 1 hp = 745.7 W
+    ("load.inertia", "420 lb-ft²", "420 lb·ft² = 17.7 kg·m²"),  # NIST SP 811, B.8: 1 lb·ft² = 0.04214 kg·m²
+    ("machine.temperature_rise", "80 C", "'80 C' read as a temperature rise of 80 K"),
+    ("machine.rated_speed", "1785", "1785 taken as 1785 rpm"),
+    ("machine.efficiency", "95 %", "95 % = 0.95"),
+    ("instruments.phase_ct", "150:5", "150:5 read as 150/5 A"),
+])
+def test_how_an_answer_was_read_is_said(key, typed, said):
+    a = nameplate(frequency="60 Hz")
+    q = flow.find(key, a)
+    assert flow.understood(q, a, typed, flow.accept(q, a, typed)) == [said]
+
+
+def test_nothing_is_said_when_the_answer_reads_as_written():
+    a = nameplate()
+    q = flow.find("machine.rated_voltage", a)
+    assert flow.understood(q, a, "4.16 kV", "4.16 kV") == []
+
+
+def test_the_review_shows_normalised_values():
+    a = nameplate(safe_stall_time_cold="15 sec", temperature_rise="80K", locked_rotor_current="6.2 pu")
+    a.flow["makers_data"] = True
+    rows = dict(flow.review_rows(a)[1][1])
+    assert rows["Safe stall time, cold"] == "15 s" and rows["Temperature rise"] == "80 K"
+    assert rows["Locked-rotor current"] == "383.9 A (6.2 pu)"  # 6.2 × 61.92 A
+
+
+# ---------------------------------------------------------------------------------------------------- help and back
+
+
+def test_help_says_the_meaning_the_forms_the_range_and_the_way_back():
+    a = nameplate()
+    lines = flow.help_text(flow.find("supply.fault_level", a), a)
+    text = " ".join(lines)
+    assert "supply.fault_level" in text and "25 kA" in text and "Plausible:" in text
+    assert lines[-1] == flow.NAVIGATION and "< and Enter (or Esc)" in flow.NAVIGATION
+
+
+def test_going_back_reopens_the_last_answer_that_applies():
+    a = Answers()
+    for key, value in (("machine.kind", MOTOR["kind"]), ("sheet.tag", "M-1"), ("sheet.description", "pump")):
+        flow.record(flow.find(key, a), a, value)
+    assert flow.go_back(a, "sheet.site").key == "sheet.description"
+    assert flow.next_question(a).key == "sheet.description" and a.get("sheet.description") == "pump"
+    assert flow.go_back(Answers(), "machine.kind") is None

@@ -33,14 +33,16 @@ EXIT_OK, EXIT_CHECK_FAILED, EXIT_BAD_INPUT = 0, 1, 2
 
 
 def caution(err: bool = False) -> None:
-    """The one-line caution every screen carries."""
-    typer.echo(CAUTION_LINE, err=err)
+    """The caution every screen that shows settings carries: wrapped at word boundaries on a terminal, one line
+    for a pipe. Not printed by ``--version`` nor by ``--help`` of a command: they compute nothing."""
+    from wizard.terminal import for_stream
+
+    typer.echo(for_stream(CAUTION_LINE, sys.stderr if err else sys.stdout), err=err)
 
 
 def _version(value: bool) -> None:
     if value:
         typer.echo(f"relaywright {__version__}")
-        caution(err=True)  # stdout stays the bare version for scripts
         raise typer.Exit(EXIT_OK)
 
 
@@ -135,11 +137,13 @@ def new_cmd(
                                                     "partial) machine file instead of prompting.")] = None,
     output: Annotated[Optional[Path], typer.Option("-o", "--output", help="Machine file to write.")] = None,
     resume: Annotated[Optional[Path], typer.Option("--resume", help="Continue from a saved draft.")] = None,
+    force: Annotated[bool, typer.Option("--force", help="Replace an existing machine file and its sheet (never "
+                                        "one of a higher revision).")] = False,
 ) -> None:
     """Answer questions about a motor or generator and write its machine file and sheet."""
     from wizard.session import run_new
 
-    raise typer.Exit(run_new(answers=answers, output=output, resume=resume))
+    raise typer.Exit(run_new(answers=answers, output=output, resume=resume, force=force))
 
 
 @app.command("revise")
@@ -176,11 +180,15 @@ def diff_cmd(
 ) -> None:
     """Inputs and settings that changed between two machine files, old → new."""
     from machines.compare import compare
-    from reports.changes import print_changes
+    from reports.changes import format_changes
+    from wizard.flow import input_labels
+    from wizard.terminal import for_stream
 
     old_case, old_record = _study(old)
     new_case, new_record = _study(new)
-    print_changes(compare(old_case, old_record, new_case, new_record))
+    changes = compare(old_case, old_record, new_case, new_record, labels=input_labels(new_case.machine.kind))
+    for line in format_changes(changes):
+        typer.echo(for_stream(line, sys.stdout))
     caution()
 
 
@@ -197,14 +205,23 @@ def demo_cmd(
     raise typer.Exit(code)
 
 
+def _full_short_help() -> None:
+    """The command list of ``--help`` shows each command's first line whole (wrapped), never cut with '...'."""
+    for info in app.registered_commands:
+        if info.short_help is None and info.callback is not None and info.callback.__doc__:
+            info.short_help = info.callback.__doc__.strip().splitlines()[0]
+
+
 def main() -> None:
     """Entry point: run the app, turning bad input into one line on stderr and exit code 2."""
     from machines.errors import InputError
+    from wizard.terminal import for_stream
 
+    _full_short_help()
     try:
         app()
     except InputError as e:
-        typer.echo(f"error: {e}", err=True)
+        typer.echo(for_stream(f"error: {e}", sys.stderr), err=True)  # one line for scripts, wrapped for people
         sys.exit(EXIT_BAD_INPUT)
     except KeyboardInterrupt:
         typer.echo("interrupted", err=True)

@@ -10,7 +10,7 @@ save leaves the previous draft whole.
 from __future__ import annotations
 
 import datetime as _dt
-from dataclasses import dataclass
+from dataclasses import dataclass, field
 from pathlib import Path
 
 from machines.errors import InputError
@@ -28,6 +28,7 @@ class Draft:
     path: Path
     command: str  #: "new" or "revise"
     output: Path | None  #: machine file to write (None until known)
+    saved: str = field(default="", compare=False)  #: when it was last saved (UTC, ISO form), as read back
 
     def save(self, answers: Answers) -> None:
         """Write the answers so far (atomically)."""
@@ -89,6 +90,32 @@ def load_draft(path: str | Path) -> tuple[Draft, Answers]:
     if not (isinstance(answers, dict) and isinstance(flow, dict) and isinstance(asked, list)
             and all(isinstance(k, str) for k in asked) and command in ("new", "revise")):
         raise InputError(str(p), "the draft is damaged (answers, flow or asked has the wrong shape)")
-    output = doc.get("output")
-    draft = Draft(path=p, command=command, output=Path(output) if isinstance(output, str) else None)
+    output, saved = doc.get("output"), doc.get("saved")
+    draft = Draft(path=p, command=command, output=Path(output) if isinstance(output, str) else None,
+                  saved=saved if isinstance(saved, str) else "")
     return draft, Answers(data=answers, flow=flow, asked=list(asked))
+
+
+def find_drafts(folder: Path, command: str) -> list[tuple[Draft, Answers]]:
+    """The readable drafts of ``command`` in ``folder`` (hidden files ``ls`` does not show), latest first."""
+    found = []
+    for path in sorted(Path(folder).glob(f"{PREFIX}*.toml")):
+        try:
+            draft, answers = load_draft(path)
+        except InputError:  # a damaged or foreign file is not offered (and never touched)
+            continue
+        if draft.command == command:
+            found.append((draft, answers))
+    return sorted(found, key=lambda da: da[0].saved, reverse=True)
+
+
+def describe(draft: Draft, answers: Answers) -> str:
+    """One line naming a draft: its file, the machine's tag, how many answers, when it was saved.
+
+    >>> describe(Draft(Path(".relaywright-draft-m.toml"), "new", None, "2026-11-20T10:15:00Z"),
+    ...          Answers(data={"sheet": {"tag": "CW-P-201"}}, asked=["machine.kind", "sheet.tag"]))
+    '.relaywright-draft-m.toml (CW-P-201, 2 answers, saved 2026-11-20 10:15 UTC)'
+    """
+    tag = answers.get("sheet.tag") or "no tag yet"
+    when = f", saved {draft.saved[:10]} {draft.saved[11:16]} UTC" if len(draft.saved) >= 16 else ""
+    return f"{draft.path.name} ({tag}, {len(answers.asked)} answers{when})"

@@ -22,8 +22,10 @@ from typing import Any, Callable
 
 from machines.errors import InputError
 from machines.files import FORMAT, MACHINE_KINDS, parse_value, section_specs
-from machines.model import FieldSpec, HistoryEntry, field_specs, rated_current_from_output
-from machines.units import KINDS
+from machines.model import (FieldSpec, HistoryEntry, field_specs, generator_poles, generator_rated_current,
+                            generator_speed_error, motor_speed_error, rated_current_from_output)
+from machines.units import (KINDS, convert, parse_date, parse_fault_level, parse_quantity, rise_note, same_unit,
+                            written_unit)
 
 MOTOR, GENERATOR = "induction-motor", "synchronous-generator"
 KIND_SPEC = FieldSpec("choice", required=True, choices=tuple(MACHINE_KINDS))
@@ -155,6 +157,7 @@ class Question:
     checks: cross-checks run once this answer is given.
     row_text: for a table, the question for each field of a row.
     after: keys this answer rests on; when one of them changes (at the review), this question is asked again.
+    more: longer help, shown when the person types ``?`` (the field's meaning, forms and range are added to it).
     """
 
     key: str
@@ -170,6 +173,7 @@ class Question:
     checks: tuple[Callable[[Answers], Finding | None], ...] = ()
     row_text: tuple[tuple[str, str], ...] = ()
     after: tuple[str, ...] = ()
+    more: str = ""
 
     @property
     def name(self) -> str:
@@ -215,6 +219,11 @@ def motor_curves(a: Answers) -> bool:
 def default_motor_curves(a: Answers) -> str:
     """Yes when the answers already hold any of the maker's curves (a revision, an answers file)."""
     return "yes" if any(a.has(k) for k in MOTOR_CURVE_KEYS) else "no"
+
+
+def not_revising(a: Answers) -> bool:
+    """A revision is signed off afresh: who checks and approves it is not asked (``relaywright revise``)."""
+    return not a.flow.get("revising")
 
 
 def grounding_is(*methods: str) -> Rule:
@@ -386,6 +395,188 @@ def check_reactances(a: Answers) -> Finding | None:
     return None
 
 
+def check_speed(a: Answers) -> Finding | None:
+    """The speed against the frequency: the file reader's own rule (machines.model), as soon as both are given."""
+    f, n = a.si("machine.frequency"), a.si("machine.rated_speed")
+    if f is None or n is None:
+        return None
+    error = motor_speed_error(f, n) if is_motor(a) else generator_speed_error(f, n)
+    return None if error is None else Finding("error", str(error))
+
+
+def check_locked_rotor_multiple(a: Answers) -> Finding | None:
+    """A locked-rotor current below 2 pu is refused by the file reader (machines.model.validate_case)."""
+    lrc, i_r = a.si("machine.locked_rotor_current"), rated_current(a)
+    if lrc is None or not i_r or lrc >= 2.0 * i_r:
+        return None
+    return Finding("error", f"machine.locked_rotor_current: expected at least 2 pu of rated current, got "
+                            f"{lrc / i_r:.3g} pu ({_number(lrc)} A)")
+
+
+def check_breakdown_torque(a: Answers) -> Finding | None:
+    """A motor pulls out above its rated torque (the file reader's rule)."""
+    bd = a.si("machine.breakdown_torque")
+    if bd is None or bd > 1.0:
+        return None
+    return Finding("error", "machine.breakdown_torque: expected more than 1 pu of rated torque")
+
+
+def check_starts(a: Answers) -> Finding | None:
+    """More starts from hot than from cold is a misread data sheet (the file reader warns the same)."""
+    cold, hot = a.get("machine.starts_cold"), a.get("machine.starts_hot")
+    if not isinstance(cold, int) or not isinstance(hot, int) or hot <= cold:
+        return None
+    return Finding("warn", f"{hot} starts from hot but {cold} from cold: the maker allows fewer starts from hot; "
+                           "check the data sheet")
+
+
+def check_fault_levels(a: Answers) -> Finding | None:
+    """The weakest source cannot give a higher fault level than the strongest."""
+    hi, lo = a.si("supply.fault_level"), a.si("supply.minimum_fault_level")
+    if hi is None or lo is None or lo <= hi:
+        return None
+    return Finding("error", f"supply.minimum_fault_level: expected at most the maximum fault level "
+                            f"({_number(hi / 1e6)} MVA), got {_number(lo / 1e6)} MVA")
+
+
+def check_bus_voltage(a: Answers) -> Finding | None:
+    """The bus voltage against the machine's rated voltage (the file reader warns beyond the same 15 %)."""
+    bus, rated = a.si("supply.nominal_voltage"), a.si("machine.rated_voltage")
+    if bus is None or rated is None or abs(bus - rated) <= 0.15 * rated:
+        return None
+    return Finding("warn", f"the bus voltage {_number(bus / 1e3)} kV differs from the machine's rated voltage "
+                           f"{_number(rated / 1e3)} kV by more than 15 %: check both (is there a transformer "
+                           "between them?)")
+
+
+def check_phase_ct(a: Answers) -> Finding | None:
+    """The phase CT primary against the full-load current, with the study's own limits (machines.protection)."""
+    from machines.protection.ct_check import RATIO_HIGH, RATIO_LOW
+
+    raw = a.get("instruments.phase_ct")
+    if raw in (None, ""):
+        return None
+    try:
+        ct = parse_value(spec_of("instruments.phase_ct", a.kind), raw, "instruments.phase_ct")
+    except InputError:
+        return None
+    if is_motor(a):
+        flc = rated_current(a)
+    else:
+        s_rated, v_rated = a.si("machine.rated_apparent_power"), a.si("machine.rated_voltage")
+        flc = None if s_rated is None or v_rated is None else generator_rated_current(s_rated, v_rated)
+    if not flc:
+        return None
+    share = flc / ct.primary
+    ratio = f"{_number(ct.primary)}/{_number(ct.secondary)} A"
+    if share > RATIO_HIGH:
+        return Finding("warn", f"the full-load current {_number(flc)} A is {share:.0%} of the {ratio} CT's primary: "
+                               "the CT runs above its rating at full load (it needs a continuous thermal rating "
+                               "factor above 1); a larger primary is usual")
+    if share < RATIO_LOW and is_motor(a):
+        return Finding("warn", f"the full-load current {_number(flc)} A is only {share:.0%} of the {ratio} CT's "
+                               f"primary: the overload measurement is coarse (the study warns below "
+                               f"{RATIO_LOW:.0%}); a smaller primary suits the motor better")
+    return None
+
+
+def check_salient_two_pole(a: Answers) -> Finding | None:
+    """Salient poles on a 2-pole machine are not built (the file reader warns the same)."""
+    rotor, f, n = a.get("machine.rotor"), a.si("machine.frequency"), a.si("machine.rated_speed")
+    if not isinstance(rotor, str) or not rotor.startswith("salient") or f is None or n is None:
+        return None
+    if generator_poles(f, n) != 2:
+        return None
+    return Finding("warn", "a salient-pole rotor, but the speed gives a 2-pole machine: check the rotor type")
+
+
+@dataclass(frozen=True)
+class CrossCheck:
+    """A check across answers, run as soon as the last of the keys it reads is given.
+
+    reads: the keys it reads; the last one asked is the answer it belongs to (its error refuses that answer).
+    When an earlier key of ``reads`` is changed later (at the review), the check runs again and warns.
+    """
+
+    reads: tuple[str, ...]
+    run: Callable[[Answers], Finding | None]
+
+
+#: Checks of an answer against everything given before it, by the keys they read. Kept apart from the questions so
+#: a question's declaration stays its own; a check reads answers, whichever question gave them.
+CROSS_CHECKS: tuple[CrossCheck, ...] = (
+    CrossCheck(("machine.frequency", "machine.rated_speed"), check_speed),
+    CrossCheck(("machine.rated_output", "machine.rated_voltage", "machine.power_factor", "machine.efficiency",
+                "machine.rated_current", "machine.locked_rotor_current"), check_locked_rotor_multiple),
+    CrossCheck(("machine.breakdown_torque",), check_breakdown_torque),
+    CrossCheck(("machine.starts_cold", "machine.starts_hot"), check_starts),
+    CrossCheck(("supply.fault_level", "supply.minimum_fault_level"), check_fault_levels),
+    CrossCheck(("machine.rated_voltage", "supply.nominal_voltage"), check_bus_voltage),
+    CrossCheck(("machine.rated_output", "machine.rated_voltage", "machine.power_factor", "machine.efficiency",
+                "machine.rated_current", "machine.rated_apparent_power", "instruments.phase_ct"), check_phase_ct),
+    CrossCheck(("machine.frequency", "machine.rated_speed", "machine.rotor"), check_salient_two_pole),
+)
+
+
+# ---- forms people write, by key: read into the form the machine file keeps, with a word on how it was read
+
+Form = Callable[[Answers, Any, str], "tuple[Any, str] | None"]
+
+
+def form_iso_date(a: Answers, raw: Any, key: str) -> tuple[Any, str] | None:
+    """Dates only year-month-day: '02/12/2026' reads two ways and is refused."""
+    return parse_date(raw, key), ""
+
+
+def form_fault_level(a: Answers, raw: Any, key: str) -> tuple[Any, str] | None:
+    """A fault level given as the fault current, at the bus voltage given just before (IEC 60909-0: S = √3·U·I)."""
+    if not isinstance(raw, str) or not written_unit(raw).endswith("A") or written_unit(raw).endswith("VA"):
+        return None
+    level, note = parse_fault_level(raw, a.si("supply.nominal_voltage"), key=key)
+    return (f"{_number(level / 1e6)} MVA", note) if note else None
+
+
+def form_share_of_rating(a: Answers, raw: Any, key: str) -> tuple[Any, str] | None:
+    """A generator's motoring power as a share of its rated active power (S × cos φ), e.g. '15 %'."""
+    if not isinstance(raw, str) or written_unit(raw) not in ("%", "pu", "p.u.", "percent"):
+        return None
+    share = parse_quantity(raw, "per_unit", key=key)
+    s_rated, pf = a.si("machine.rated_apparent_power"), a.si("machine.power_factor")
+    if s_rated is None or pf is None:
+        raise InputError(key, f"{raw.strip()!r} is a share of the rating, and the rated output and power factor are "
+                              "not known yet; give kW such as '150 kW'")
+    p_rated = s_rated * pf
+    kw = share * p_rated / 1e3
+    return f"{_number(kw)} kW", (f"{raw.strip()} of the rated {_number(p_rated / 1e3)} kW "
+                                 f"({_number(s_rated / 1e3)} kVA × {_number(pf)}) = {_number(kw)} kW")
+
+
+def form_temperature_rise(a: Answers, raw: Any, key: str) -> tuple[Any, str] | None:
+    """A rise written in degrees Celsius ('80 °C', '80 C') is the same rise in kelvin; the file keeps kelvin."""
+    note = rise_note(raw)
+    if not note:
+        return None
+    return f"{_number(parse_quantity(raw, 'temperature_rise', key=key))} K", note
+
+
+FORMS: dict[str, Form] = {
+    "sheet.date": form_iso_date,
+    "supply.fault_level": form_fault_level,
+    "supply.minimum_fault_level": form_fault_level,
+    "machine.motoring_power": form_share_of_rating,
+    "machine.temperature_rise": form_temperature_rise,
+}
+
+#: What the ``?`` help adds for a key read in another form too.
+FORM_HELP = {
+    "sheet.date": "Dates are written year-month-day, e.g. 2026-11-20 (02/12/2026 reads two ways and is refused).",
+    "supply.fault_level": "A fault current such as 25 kA is taken at the bus voltage given before (S = √3·U·I).",
+    "supply.minimum_fault_level": "A fault current such as 18 kA is taken at the bus voltage given before.",
+    "machine.motoring_power": "A share such as 15 % is of the rated active power (rated kVA × power factor).",
+    "machine.temperature_rise": "A rise in degrees Celsius (80 °C, 80 C) is the same rise in kelvin (80 K).",
+}
+
+
 # ---- the questions
 
 _MAKER = "maker's data sheet"
@@ -422,9 +613,9 @@ QUESTIONS: tuple[Question, ...] = (
     Question("sheet.site", "Site or plant", "Site", "identification"),
     Question("sheet.prepared_by", "Your name (prepared by)", "Prepared by", "identification"),
     Question("sheet.checked_by", "Who will check these settings?", "Checked by", "identification",
-             blank=constant("left for the sign-off block")),
+             blank=constant("left for the sign-off block"), when=not_revising),
     Question("sheet.approved_by", "Who will approve them?", "Approved by", "identification",
-             blank=constant("left for the sign-off block")),
+             blank=constant("left for the sign-off block"), when=not_revising),
     Question("sheet.date", "Date of this issue", "Date", "identification", default=lambda a: today(),
              help="year-month-day"),
     Question("sheet.page_size", "Paper size of the sheet", "Paper", "identification",
@@ -740,9 +931,23 @@ def applicable(a: Answers) -> list[Question]:
     return [q for q in QUESTIONS if applies(q, a)]
 
 
-def next_question(a: Answers) -> Question | None:
-    """The first question that applies and has not been answered yet, or None when the interview is done."""
-    return next((q for q in QUESTIONS if applies(q, a) and q.key not in a.asked), None)
+def next_question(a: Answers, skip: Any = ()) -> Question | None:
+    """The first question that applies and has not been answered yet (nor is in ``skip``), or None when done."""
+    return next((q for q in QUESTIONS if applies(q, a) and q.key not in a.asked and q.key not in skip), None)
+
+
+def go_back(a: Answers, current: str | None = None) -> Question | None:
+    """Reopen the answer given last (other than ``current``) that still applies; None when there is none.
+
+    Its answer is kept as the default, so Enter gives it again; the questions after it are asked in turn.
+    """
+    for key in reversed(a.asked):
+        q = find(key, a)
+        if key == current or q is None or not applies(q, a):
+            continue
+        a.unmark(key)
+        return q
+    return None
 
 
 def find(key: str, a: Answers | None = None) -> Question | None:
@@ -789,11 +994,21 @@ def unit_shown(q: Question, a: Answers) -> str:
 _BARE = re.compile(r"\s*[+-]?(?:\d+(?:\.\d*)?|\.\d+)(?:[eE][+-]?\d+)?\s*")
 
 
-def missing(key: str, s: FieldSpec) -> InputError:
-    """The error for a required answer that is not given (same words as the machine file reader)."""
+def expected(s: FieldSpec) -> str:
+    """What a field expects, in the file reader's words, e.g. "active power such as '1500 hp'"."""
     example = KINDS[s.kind].example if s.kind in KINDS else ""
     hint = f" such as '{example}'" if example else (f" ({', '.join(s.choices)})" if s.choices else "")
-    return InputError(key, f"required key is missing; expected {s.kind.replace('_', ' ')}{hint}")
+    return f"{s.kind.replace('_', ' ')}{hint}"
+
+
+def missing(key: str, s: FieldSpec) -> InputError:
+    """The error for a required answer that is not given (same words as the machine file reader)."""
+    return InputError(key, f"required key is missing; expected {expected(s)}")
+
+
+def unanswerable(q: Question, a: Answers) -> bool:
+    """Required, not given and with no default: only the person can answer it."""
+    return not a.has(q.key) and default(q, a) in (None, "") and is_required(q, a)
 
 
 def accept(q: Question, a: Answers, raw: Any) -> Any:
@@ -814,6 +1029,12 @@ def accept(q: Question, a: Answers, raw: Any) -> Any:
         raw = fallback
     if s.kind == "table":
         return _accept_rows(q, a, raw)
+    form = FORMS.get(q.key)
+    got = form(a, raw, key) if form is not None else None
+    if got is not None:
+        value = got[0]
+        parse_value(s, value, key, rated_current=rated_current(a), default_unit=unit_shown(q, a) or None)
+        return value
     if s.kind == "boolean" and isinstance(raw, str):
         low = raw.strip().lower()
         if low not in ("yes", "no", "y", "n", "true", "false"):
@@ -829,8 +1050,10 @@ def accept(q: Question, a: Answers, raw: Any) -> Any:
             return raw.upper()
         if unit and _BARE.fullmatch(raw):
             return f"{raw} {unit}"
-        if s.kind == "ratio" and not re.search(r"[A-Za-z]\s*$", raw):
-            return f"{raw} {unit}"
+        if s.kind == "ratio":  # written primary/secondary with its unit: '150:5' → '150/5 A'
+            m = re.search(r"[A-Za-z]+\s*$", raw)
+            numbers = re.sub(r"\s*[/:]\s*", "/", raw[:m.start()] if m else raw).strip()
+            return f"{numbers} {m.group(0).strip() if m else unit}"
     return raw
 
 
@@ -871,7 +1094,7 @@ def record(q: Question, a: Answers, value: Any) -> None:
     before = a.get(q.key)
     if q.key == "machine.kind" and a.kind is not None and value != a.kind:
         a.asked[:] = [k for k in a.asked if (f := find(k)) is not None and f.section == "identification"]
-    elif before is not None and before != value:
+    elif before != value:  # (a first answer too: after an answers file that lacked it, what rests on it is asked)
         for other in QUESTIONS:  # answers that rest on this one are asked again, offered as they are
             if q.key in other.after:
                 a.unmark(other.key)
@@ -880,8 +1103,20 @@ def record(q: Question, a: Answers, value: Any) -> None:
 
 
 def findings(q: Question, a: Answers) -> list[Finding]:
-    """The cross-checks this answer completes, run on the answers as they stand."""
-    return [f for check in q.checks if (f := check(a)) is not None]
+    """The checks of this answer against every answer given so far, run on the answers as they stand.
+
+    The question's own checks, then the cross-checks that read its key (:data:`CROSS_CHECKS`). A cross-check that
+    belongs to a later answer already given (an answer changed at the review) warns instead of refusing: the later
+    answer is the one to correct, and the review offers it.
+    """
+    out = [f for check in q.checks if (f := check(a)) is not None]
+    for c in CROSS_CHECKS:
+        if q.key not in c.reads or (f := c.run(a)) is None:
+            continue
+        if f.level == "error" and c.reads[-1] != q.key:
+            f = Finding("warn", f"{f.message} (an answer given before; the review offers to change it)")
+        out.append(f)
+    return out
 
 
 def refusal(q: Question, a: Answers, raw: Any) -> str | None:
@@ -935,6 +1170,16 @@ def machine_data(a: Answers) -> dict:
     return out
 
 
+def input_labels(kind: str) -> dict[str, str]:
+    """The label of every machine-file key the questions ask for this kind of machine (for the change summary)."""
+    a = Answers(data={"machine": {"kind": kind}})
+    out: dict[str, str] = {}
+    for q in QUESTIONS:
+        if not q.key.startswith("flow.") and (q.key not in out or q.when(a)):
+            out[q.key] = q.label
+    return out
+
+
 def left_out(a: Answers) -> list[str]:
     """Keys the answers give that no longer apply (e.g. a fault current limit for a solidly grounded system)."""
     live = {q.key for q in applicable(a)}
@@ -956,7 +1201,8 @@ def review_rows(a: Answers) -> list[tuple[str, list[tuple[str, str]]]]:
 
 
 def shown_answer(q: Question, a: Answers) -> str:
-    """An answer as the review shows it: as written, a choice by its label, blank by what blank means."""
+    """An answer as the review shows it: normalised ('15 s', not '15 sec'), a choice by its label, blank by what
+    blank means."""
     value = a.get(q.key)
     s = spec(q, a)
     if s.kind == "boolean" or q.key.startswith("flow."):
@@ -966,22 +1212,179 @@ def shown_answer(q: Question, a: Answers) -> str:
             return "none"
         return f"— {blank_meaning(q, a) or 'not given'}"
     if s.kind == "table":
-        return "; ".join(" / ".join(str(v) for v in row.values()) for row in value)
+        return "; ".join(" / ".join(_cell(v) for v in row.values()) for row in value)
     labels = dict(q.choices)
-    return labels.get(value, str(value)) if q.choices else str(value)
+    if q.choices:
+        return labels.get(value, str(value))
+    return normalised(q, a, value)
 
 
-def scripted(a: Answers) -> list[str]:
+def _cell(value: Any) -> str:
+    return pretty_quantity(value) if isinstance(value, str) else str(value)
+
+
+_UNIT_SIGNS = (("*", "·"), ("^2", "²"), ("^3", "³"), ("uF", "µF"), ("ohm", "Ω"))
+
+
+def pretty_unit(unit: str) -> str:
+    """A unit as printed: 'kg*m^2' → 'kg·m²', 'uF' → 'µF', 'ohm' → 'Ω', 'lb-ft^2' → 'lb·ft²'."""
+    unit = re.sub(r"(?<=[A-Za-z])-(?=[A-Za-z])", "·", unit)
+    for old, new in _UNIT_SIGNS:
+        unit = unit.replace(old, new)
+    return unit
+
+
+def pretty_quantity(text: str) -> str:
+    """A quantity as written, tidied: number, one space, the unit printed ('80K' → '80 K', '28 kg*m^2' →
+    '28 kg·m²')."""
+    unit = written_unit(text)
+    if not unit:
+        return text.strip()
+    number = text.strip()[: len(text.strip()) - len(unit)].strip()
+    return f"{number} {pretty_unit(unit)}"
+
+
+def normalised(q: Question, a: Answers, value: Any) -> str:
+    """An answer in the unit the question is asked in, with the form it was written in where that differs.
+
+    '1500 hp' → '1119 kW (1500 hp)'; '15 sec' → '15 s'; '6.2 pu' → '1153 A (6.2 pu)'; '95.8 %' → '95.8 %'.
+    """
+    s = spec(q, a)
+    if not isinstance(value, (str, int, float)) or isinstance(value, bool):
+        return str(value)
+    if s.kind == "ratio":
+        try:
+            r = parse_value(s, value, q.key)
+        except InputError:
+            return str(value)
+        return f"{_number(r.primary)}/{_number(r.secondary)} {s.unit}"
+    if s.kind not in KINDS and s.kind != "current_or_pu":
+        return str(value)
+    try:
+        i_rated = rated_current(a) if s.kind == "current_or_pu" else None
+        si = parse_value(s, value, q.key, rated_current=i_rated, default_unit=s.unit or None)
+    except InputError:
+        return str(value)
+    written = written_unit(value) if isinstance(value, str) else ""
+    if s.kind == "per_unit":
+        return pretty_quantity(str(value)) if written in ("%", "pu") else _number(si)
+    if s.kind == "current_or_pu":
+        shown = f"{_number(si)} A"
+        return shown if written == "A" else f"{shown} ({pretty_quantity(str(value))})"
+    unit = s.unit or KINDS[s.kind].si_unit
+    shown = f"{_number(convert(si, KINDS[s.kind].si_unit, unit))} {pretty_unit(unit)}"
+    if written and not same_unit(written, unit):
+        return f"{shown} ({pretty_quantity(str(value))})"
+    if written and written != unit:  # the same unit up to a prefix or a spelling: as written, tidied
+        return pretty_quantity(str(value)) if not same_unit(written, "s") else f"{_number(si)} s"
+    return shown
+
+
+def understood(q: Question, a: Answers, raw: Any, value: Any) -> list[str]:
+    """How a typed answer was read, when that is not plain from what was typed: conversions, the unit taken for a
+    bare number, a share of a rating, a rise in degrees, the default taken for Enter.
+
+    '800 hp' → ['800 hp = 596.6 kW']; '420 lb-ft²' → ['420 lb-ft² = 17.7 kg·m²']; '80 C' → ["'80 C' read as a
+    temperature rise of 80 K"]; '6.2' for a locked-rotor current → ['6.2 pu = 1153 A (of the 186 A full-load
+    current)'].
+    """
+    if not isinstance(raw, str) or value is None:
+        return []
+    typed = raw.strip()
+    s = spec(q, a)
+    if not typed:
+        return [f"taken: {shown_answer(q, a.trial(q.key, value))}"]
+    form = FORMS.get(q.key)
+    got = form(a, typed, q.key) if form is not None else None
+    if got is not None:
+        return [got[1]] if got[1] else []
+    if s.kind == "ratio" and (":" in typed or not re.search(r"[A-Za-z]\s*$", typed)):
+        return [f"{typed} read as {normalised(q, a, value)}"]
+    if s.kind == "current_or_pu":
+        i_rated = rated_current(a)
+        try:
+            amps = parse_value(s, value, q.key, rated_current=i_rated, default_unit=s.unit or None)
+        except InputError:
+            return []
+        if not i_rated:
+            return []
+        if written_unit(value) == "A":
+            return [f"{typed} = {amps / i_rated:.3g} pu of the {_number(i_rated)} A full-load current"]
+        return [f"{typed if written_unit(typed) else value} = {_number(amps)} A (of the {_number(i_rated)} A "
+                "full-load current)"]
+    if s.kind == "per_unit":
+        return [f"{typed} = {_number(a.trial(q.key, value).si(q.key) or 0.0)}"] if written_unit(typed) == "%" else []
+    if s.kind not in KINDS:
+        return []
+    shown = normalised(q, a, value)
+    if not written_unit(typed):
+        return [f"{typed} taken as {shown}"]
+    plain = shown.split(" (", 1)[0]
+    if not same_unit(written_unit(typed), s.unit or KINDS[s.kind].si_unit):
+        return [f"{pretty_quantity(typed)} = {plain}"]
+    return []
+
+
+NAVIGATION = ("< and Enter (or Esc): back to the previous question · ? and Enter: this help · Ctrl-C: stop, your "
+              "answers are kept")
+
+
+def help_text(q: Question, a: Answers) -> list[str]:
+    """What ``?`` shows: the question, its help, the field's meaning, how to write it, the range, what blank means."""
+    s = spec(q, a)
+    lines = [q.text]
+    for text in (q.help, q.more):
+        if text:
+            lines.append(text)
+    if s.help and s.help.lower() not in (q.help or "").lower():
+        lines.append(f"In the machine file: {q.key} — {s.help}.")
+    if q.choices:
+        lines.append("Pick one with the arrow keys and Enter.")
+    elif s.kind == "current_or_pu":
+        lines.append("Write amperes (e.g. 1150 A) or per-unit of the full-load current (e.g. 6.2 pu or 620 %); a "
+                     "bare number is per-unit.")
+    elif s.kind == "per_unit":
+        lines.append("Write a per-unit value (e.g. 0.89) or a percentage (e.g. 89 %).")
+    elif s.kind == "ratio":
+        lines.append(f"Write primary/secondary, e.g. {'200/1 A or 150:5' if s.unit == 'A' else '6600/110 V'}.")
+    elif s.kind in KINDS:
+        unit = pretty_unit(s.unit or KINDS[s.kind].si_unit)
+        lines.append(f"Write {KINDS[s.kind].noun} with its unit, e.g. {KINDS[s.kind].example}; a bare number is taken "
+                     f"in {unit}.")
+    elif s.kind == "boolean":
+        lines.append("Answer y or n, then Enter.")
+    if s.kind in KINDS and s.lo is not None and s.hi is not None and s.kind != "per_unit":
+        si, unit = KINDS[s.kind].si_unit, s.unit or KINDS[s.kind].si_unit
+        lines.append(f"Plausible: {_number(convert(s.lo, si, unit))} to {_number(convert(s.hi, si, unit))} "
+                     f"{pretty_unit(unit)}.")
+    if q.key in FORM_HELP:
+        lines.append(FORM_HELP[q.key])
+    meaning = blank_meaning(q, a)
+    if meaning and not is_required(q, a):
+        lines.append(f"Left blank: {meaning}.")
+    lines.append(NAVIGATION)
+    return lines
+
+
+def scripted(a: Answers, missing_keys: list[str] | None = None) -> list[str]:
     """Answer every question from the answers already held (an answers file), without asking.
 
     A question the data do not answer takes its default; one with no default is left out when optional and is an
     error (naming the key) when required. Same checks and messages as the prompts. Returns the warnings.
+
+    With ``missing_keys`` (a list), required answers that nobody gave are collected there instead and left unasked,
+    so every one of them can be named at once (or asked in a terminal).
     """
     warnings: list[str] = []
-    while (q := next_question(a)) is not None:
+    skipped: set[str] = set()
+    while (q := next_question(a, skipped)) is not None:
         raw = a.get(q.key)
         if raw in (None, "") and spec(q, a).kind == "boolean":
             raw = q.default(a) if q.default else "no"
+        if missing_keys is not None and raw in (None, "") and unanswerable(q, a):
+            missing_keys.append(q.key)
+            skipped.add(q.key)
+            continue
         record(q, a, accept(q, a, "" if raw is None else raw))
         for f in findings(q, a):
             if f.level == "error":

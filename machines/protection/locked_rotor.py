@@ -173,8 +173,8 @@ def settings(ctx: StudyContext) -> FunctionSettings:
                                     "longer than a jam delay below the stall limit allows: block the jam stage "
                                     "while the motor re-accelerates (the relay's start logic)."))
     ctx.derived["stall_delay_window"] = Setting(
-        f"{d_lo:.1f} … {d_hi:.1f} s" if b.bounded else f"not bounded … {d_hi:.1f} s", "", "derived",
-        label="51LR delay window", note="max(t_acc + 2 s, 1.2 × t_acc) … 0.9 × hot locked-rotor limit")
+        f"{d_lo:.1f} s to {d_hi:.1f} s" if b.bounded else f"not bounded, up to {d_hi:.1f} s", "", "derived",
+        label="51LR delay window", note="from max(t_acc + 2 s, 1.2 × t_acc) to 0.9 × the hot locked-rotor limit")
 
     s = {
         "pickup_current": current_setting(pickup, ct, p_src, "Stall pickup", note=f"{pickup / flc:.2f} × FLC"),
