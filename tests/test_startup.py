@@ -18,7 +18,7 @@ from wizard.cli_params import PlainArgument, PlainOption
 
 ROOT = Path(__file__).resolve().parent.parent
 EXAMPLES = sorted((ROOT / "examples").glob("*.toml"))
-HEAVY = ("pint", "pydantic", "numpy", "reportlab", "rich", "questionary", "pyhanko")
+HEAVY = ("pint", "pydantic", "numpy", "reportlab", "rich", "questionary", "pyhanko", "importlib.metadata")
 
 
 def loaded_by(*args: str) -> set[str]:
