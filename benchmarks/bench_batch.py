@@ -1,25 +1,26 @@
-"""Benchmark: start-up, one study, one sheet, whole processes and a 200-file batch, each against its floor.
+"""Benchmark: one study, one sheet, a 200-file batch and a re-run of current files, each against its floor.
 
-Not a test: it prints figures (and with ``--markdown FILE`` writes them as a table). Run from the repository with
-the project's virtualenv, on an otherwise idle machine::
+Not a test: it prints the figures as rows of the README's performance table. Run from the repository with the
+project's virtualenv, on an otherwise quiet machine (about seven minutes on two quiet cores)::
 
-    python benchmarks/bench_batch.py [--files 200] [--repeat 1] [--markdown benchmark.md]
+    python benchmarks/bench_batch.py [--files 200] [--pairs 5] [--rerun-files 1000]
 
-What is measured (wall-clock medians; a whole process includes interpreter start and imports):
+Every figure with a floor is measured in pairs, ours then the floor, A B A B ... (``benchmarks/paired.py``): the
+row quotes the medians and the median of the pairs' ratios, so one run slowed by other work on the machine does
+not change the verdict. What is measured:
 
-- ``relaywright --help``, against ``python -c pass``;
-- (a) one study (``run_study`` on a validated case, in process, after a first call);
-- (b) one sheet in process (``build_sheet``, mean over the examples), against the floor built in process;
-- (c) ``relaywright sheet FILE -o PDF`` as a whole process, against ``floor_sheet.py -o PDF`` as a whole process;
-- (d) ``relaywright batch`` over N machine files (made in a temporary folder by varying the examples' ratings and
-  tags) with two workers and with one, against ``floor_sheet.py --batch`` run the same ways; throughput is
-  sheets per second, the speed-up is the one-worker time over the two-worker time;
+- one study (``run_study`` on a validated case, in process, after a first call; slowest example, median);
+- one sheet in process (``build_sheet``) against the floor built in process, pair by pair over the examples;
+- ``relaywright batch`` over N machine files (made in a temporary folder by varying the examples' ratings and
+  tags) with two workers and with one, against ``floor_sheet.py --batch`` run the same ways, as whole processes;
+  the speed-up is the one-worker time over the two-worker time (medians);
+- a re-run of ``relaywright batch`` over files whose sheets are all current (median of the runs; no floor);
 - peak resident memory of a batch worker (``getrusage(RUSAGE_CHILDREN).ru_maxrss`` of a process that runs the batch
   in a pool) and of the main process.
 
-The floor (``floor_sheet.py``) sets the sheet's own saved layout with plain reportlab (same pages, cells,
-paragraphs, drawing points, fonts and stream settings; ``tests/test_floor.py`` counts them), so each ratio is what
-relaywright costs beyond setting the same document in reportlab.
+The floor (``floor_sheet.py``) builds a plain reportlab PDF with the same content as the real sheet, so each ratio
+is what relaywright costs beyond setting the same content in reportlab. Start-up figures (``--help``, ``settings``,
+``sheet`` as whole processes) are in ``bench_startup.py``.
 """
 
 from __future__ import annotations
@@ -27,7 +28,6 @@ from __future__ import annotations
 import argparse
 import copy
 import json
-import os
 import re
 import shutil
 import statistics
@@ -43,37 +43,10 @@ ROOT = HERE.parent
 EXAMPLES = sorted((ROOT / "examples").glob("*.toml"))
 sys.path.insert(0, str(HERE))
 
+import paired  # noqa: E402
 from floor_sheet import build_floor  # noqa: E402
 
-TARGETS = {"help": 0.15, "study": 0.020, "sheet_process": 1.0, "batch_ratio": 1.5, "speedup": 1.7,
-           "worker_mb": 200.0}
-
-
-def cli() -> list[str]:
-    script = Path(sys.executable).with_name("relaywright")
-    return [str(script)] if script.exists() else [sys.executable, "-m", "wizard.cli"]
-
-
-CPU_USED: list[float] = []  # CPU seconds (user + system) of each process run by :func:`wall`, its workers included
-
-
-def wall(cmd: list[str], **kw) -> float:
-    """Wall time of a whole process [s]; its CPU time goes to :data:`CPU_USED`."""
-    import resource
-
-    def cpu() -> float:
-        r = resource.getrusage(resource.RUSAGE_CHILDREN)
-        return r.ru_utime + r.ru_stime
-
-    c0, t0 = cpu(), time.perf_counter()
-    subprocess.run(cmd, check=True, stdout=subprocess.DEVNULL, stderr=subprocess.DEVNULL, cwd=ROOT, **kw)
-    elapsed = time.perf_counter() - t0
-    CPU_USED.append(cpu() - c0)
-    return elapsed
-
-
-def median_of(fn, n: int) -> float:
-    return statistics.median(fn() for _ in range(n))
+TARGETS = {"study": 0.020, "batch_ratio": 1.25, "speedup": 1.7, "rerun": 2.0, "worker_mb": 200.0}
 
 
 def timed(fn) -> float:
@@ -85,8 +58,9 @@ def timed(fn) -> float:
 # ---------------------------------------------------------------------------------------------------- content
 
 
-def sheet_layout_of(record) -> dict:
-    """The sheet's layout as saved for the floor (plain data: the floor sets exactly this document)."""
+def sheet_content(record) -> dict:
+    """The sheet's layout as saved for the floor (plain JSON data): the floor sets exactly this document, so both
+    sides build the same pages, cells, paragraphs, drawing points and fonts (``tests/test_floor.py`` counts them)."""
     from reports.sheet import sheet_layout
 
     return json.loads(json.dumps(sheet_layout(record)))
@@ -145,11 +119,31 @@ def peak_memory(plant: Path, out: Path, workers: int) -> dict:
             "main_mb": resource.getrusage(resource.RUSAGE_SELF).ru_maxrss / kb / 1024}
 
 
+# ---------------------------------------------------------------------------------------------------- the floor
+# How the floor is run; the one place to change when the floor script changes.
+
+
+def floor_batch_command(files: int, workers: int, layouts_json: Path, out: Path) -> list[str]:
+    """The floor's batch as a whole process: ``files`` floor PDFs with the layouts of the batch's sheets."""
+    return [sys.executable, str(HERE / "floor_sheet.py"), "--batch", str(files), "--workers", str(workers),
+            "--layouts", str(layouts_json), str(out)]
+
+
+def floor_process_command(record_json: Path, layout: dict, out: Path) -> list[str]:
+    """The floor of one ``relaywright sheet`` process: interpreter, numpy, the saved record read, the floor PDF of
+    the sheet's saved layout."""
+    saved = out.with_suffix(".layout.json")
+    saved.write_text(json.dumps(layout), "utf-8")
+    code = ("import json, sys, numpy; json.loads(open(sys.argv[1], encoding='utf-8').read()); "
+            f"sys.path.insert(0, {str(HERE)!r}); import floor_sheet; sys.exit(floor_sheet.main(sys.argv[2:]))")
+    return [sys.executable, "-c", code, str(record_json), str(saved), "-o", str(out)]
+
+
 # ---------------------------------------------------------------------------------------------------- the run
 
 
-def run(files: int, repeat: int) -> list[tuple[str, float, float | None, str, str]]:
-    """Every figure as (name, value, floor or None, unit, target text)."""
+def run(files: int, n: int, rerun_files: int) -> list[str]:
+    """Every figure, as rows of the README's performance table."""
     from machines.files import load_case
     from machines.study import run_study
     from reports.sheet import build_sheet
@@ -157,144 +151,96 @@ def run(files: int, repeat: int) -> list[tuple[str, float, float | None, str, st
     tmp = Path(tempfile.mkdtemp(prefix="relaywright-bench-"))
     rows = []
     try:
-        # start-up
-        help_t = median_of(lambda: wall([*cli(), "--help"]), 10)
-        bare = median_of(lambda: wall([sys.executable, "-c", "pass"]), 10)
-        rows.append(("relaywright --help (whole process)", help_t, bare, "s", f"< {TARGETS['help']} s"))
-
-        # (a) one study
+        # one study, in process
         cases = [load_case(p) for p in EXAMPLES]
-        studies = []
-        for case, warnings in cases:
-            run_study(case, warnings)
-            studies.append(median_of(lambda: timed(lambda: run_study(case, warnings)), 30))
-        rows.append(("(a) one study, in process (slowest example)", max(studies), None, "s",
-                     f"< {TARGETS['study'] * 1000:.0f} ms"))
+        studies = [paired.median_of(lambda: timed(lambda: run_study(case, warnings)), 30)
+                   for case, warnings in cases]
+        study = max(studies)
+        rows.append(paired.row("one study, in process (slowest example)", paired.show(study), "—", "—",
+                               f"< {TARGETS['study'] * 1000:.0f} ms", study < TARGETS["study"]))
 
-        # (b) one sheet in process, against the floor in process (mean over the examples, as the batch mixes them)
+        # one sheet in process, against the floor in process: pairs taken over the examples in turn
         records = [run_study(case, warnings) for case, warnings in cases]
-        contents = [sheet_layout_of(r) for r in records]
-        sheet_ts, floor_ts = [], []
-        for record, content in zip(records, contents):
-            build_sheet(record), build_floor(content)
-            sheet_ts.append(median_of(lambda: timed(lambda: build_sheet(record)), 9))
-            floor_ts.append(median_of(lambda: timed(lambda: build_floor(content)), 9))
-        rows.append(("(b) one sheet, in process (mean of the examples)", statistics.mean(sheet_ts),
-                     statistics.mean(floor_ts), "s", "ratio to floor"))
+        contents = [sheet_content(r) for r in records]
+        turn = {"a": 0, "b": 0}
 
-        # (c) a whole `relaywright sheet` process, against the floor as a whole process
-        c0 = contents[0]
-        (tmp / "layout.json").write_text(json.dumps(c0), "utf-8")
-        floor_args = [str(tmp / "layout.json")]
-        sheet_p = median_of(lambda: wall([*cli(), "sheet", str(EXAMPLES[0]), "-o", str(tmp / "one.pdf")]), 5)
-        floor_p = median_of(lambda: wall([sys.executable, str(HERE / "floor_sheet.py"), *floor_args, "-o",
-                                          str(tmp / "floor.pdf")]), 5)
-        rows.append(("(c) relaywright sheet, whole process", sheet_p, floor_p, "s",
-                     f"< {TARGETS['sheet_process']} s"))
+        def one(which, build, items):
+            def go():
+                i = turn[which] % len(items)
+                turn[which] += 1
+                return timed(lambda: build(items[i]))
+            return go
 
-        # (d) N files through batch with 2 workers and 1, against the floor batch run the same ways
+        sheet = paired.pairs(one("a", build_sheet, records), one("b", build_floor, contents),
+                             max(n, 3) * len(records))
+        rows.append(paired.ratio_row("one sheet, in process (examples in turn)", sheet, "same content in plain "
+                                     "reportlab", None))
+
+        # N files through batch with 2 workers and 1, against the floor's batch run the same ways
         plant = tmp / "plant"
         plant.mkdir()
         which = make_plant(plant, files)
-        spec = tmp / "contents.json"
+        spec = tmp / "layouts.json"
         spec.write_text(json.dumps([contents[k] for k in which]))
-        times: dict[tuple[str, int], float] = {}
+        batch: dict[int, paired.Paired] = {}
         for workers in (2, 1):
-            def batch_once(w=workers):
-                out = tmp / f"out-{w}"
-                shutil.rmtree(out, ignore_errors=True)
-                return wall([*cli(), "batch", str(plant), "-o", str(out), "--workers", str(w)])
+            out, floor_out = tmp / f"out-{workers}", tmp / f"floor-{workers}"
+            batch[workers] = paired.processes(
+                [*paired.cli(), "batch", str(plant), "-o", str(out), "--workers", str(workers)],
+                floor_batch_command(files, workers, spec, floor_out), n,
+                before_a=lambda o=out: shutil.rmtree(o, ignore_errors=True),
+                before_b=lambda o=floor_out: shutil.rmtree(o, ignore_errors=True))
+            rows.append(paired.ratio_row(f"`relaywright batch`, {files} machine files, {workers} worker"
+                                         f"{'s' if workers > 1 else ''}", batch[workers], "floor batch, same "
+                                         "workers", TARGETS["batch_ratio"] if workers == 2 else None))
+        ours, floor = batch[1].ours / batch[2].ours, batch[1].floor / batch[2].floor
+        rows.append(paired.row("speed-up with 2 workers", f"{ours:.2f}×", f"{floor:.2f}×", "—",
+                               f"≥ {TARGETS['speedup']}", ours >= TARGETS["speedup"]))
 
-            def floor_once(w=workers):
-                out = tmp / f"floor-{w}"
-                shutil.rmtree(out, ignore_errors=True)
-                return wall([sys.executable, str(HERE / "floor_sheet.py"), "--batch", str(files), "--workers",
-                             str(w), "--layouts", str(spec), str(out)])
-
-            times[("batch", workers)] = median_of(batch_once, repeat)
-            cpu_batch = statistics.median(CPU_USED[-repeat:])
-            times[("floor", workers)] = median_of(floor_once, repeat)
-            cpu_floor = statistics.median(CPU_USED[-repeat:])
-            rows.append((f"(d) batch of {files}, {workers} worker{'s' if workers > 1 else ''} (whole process)",
-                         times[("batch", workers)], times[("floor", workers)], "s",
-                         f"ratio < {TARGETS['batch_ratio']}"))
-            rows.append((f"    throughput, {workers} worker{'s' if workers > 1 else ''}",
-                         files / times[("batch", workers)], files / times[("floor", workers)], "sheets/s", ""))
-            rows.append((f"    CPU time per sheet, {workers} worker{'s' if workers > 1 else ''} (other load left out)",
-                         cpu_batch / files, cpu_floor / files, "s", ""))
-        rows.append(("(d) speed-up with 2 workers", times[("batch", 1)] / times[("batch", 2)],
-                     times[("floor", 1)] / times[("floor", 2)], "×", f">= {TARGETS['speedup']}"))
+        # a re-run over files whose sheets are all current
+        if rerun_files:
+            many, out = tmp / "many", tmp / "out-many"
+            many.mkdir()
+            make_plant(many, rerun_files)
+            command = [*paired.cli(), "batch", str(many), "-o", str(out)]
+            paired.wall(command)  # the first run makes every sheet current
+            rerun = paired.median_of(lambda: paired.wall(command), n)
+            rows.append(paired.row(f"re-run of `relaywright batch` over {rerun_files} current files",
+                                   paired.show(rerun), "—", "—", f"≤ {TARGETS['rerun']:g} s",
+                                   rerun <= TARGETS["rerun"]))
 
         # peak memory of a worker (and of the main process), from a process that runs the batch in a pool
         helper = subprocess.run([sys.executable, str(Path(__file__)), "--peak-memory", str(plant),
-                                 str(tmp / "out-mem")], check=True, capture_output=True, text=True, cwd=ROOT)
+                                 str(tmp / "out-mem")], check=True, capture_output=True, text=True, cwd=ROOT,
+                                env=paired.environment())
         mem = json.loads(helper.stdout.strip().splitlines()[-1])
-        rows.append(("peak memory per batch worker", mem["worker_mb"], None, "MB", f"< {TARGETS['worker_mb']:.0f} MB"))
-        rows.append(("peak memory of the batch main process", mem["main_mb"], None, "MB", ""))
-        rows.append(("sheet content (blocks in the first example's layout)", 0, None, str(len(c0["blocks"])),
-                     "first example"))
+        rows.append(paired.row("peak memory per batch worker", f"{mem['worker_mb']:.0f} MB", "—", "—",
+                               f"< {TARGETS['worker_mb']:.0f} MB", mem["worker_mb"] < TARGETS["worker_mb"]))
+        rows.append(f"<!-- batch main process peak memory {mem['main_mb']:.0f} MB; sheet content of the first "
+                    f"example: {len(contents[0].get('blocks', []))} blocks; {sheet.spread()} (one sheet); "
+                    + "; ".join(f"{w} worker(s): {p.spread()}" for w, p in batch.items()) + " -->")
     finally:
         shutil.rmtree(tmp, ignore_errors=True)
     return rows
 
 
-def verdict(name: str, value: float, floor: float | None) -> str:
-    checks = {"--help": value < TARGETS["help"], "(a)": value < TARGETS["study"],
-              "(c)": value < TARGETS["sheet_process"], "speed-up": value >= TARGETS["speedup"],
-              "per batch worker": value < TARGETS["worker_mb"]}
-    if name.startswith("(d) batch") and floor:
-        return "met" if value / floor <= TARGETS["batch_ratio"] else "MISSED"
-    for key, ok in checks.items():
-        if key in name:
-            return "met" if ok else "MISSED"
-    return ""
-
-
-def show(value: float, unit: str) -> str:
-    if unit == "s":
-        return f"{value * 1000:.0f} ms" if value < 1 else f"{value:.2f} s"
-    if unit in ("MB", "sheets/s"):
-        return f"{value:.0f} {unit}" if unit == "MB" else f"{value:.1f} {unit}"
-    if unit == "×":
-        return f"{value:.2f}×"
-    return unit
-
-
-def report(rows, markdown: Path | None) -> None:
-    lines = ["| figure | relaywright | floor | ratio | target | |", "|---|---|---|---|---|---|"]
-    for name, value, floor, unit, target in rows:
-        ratio = f"{value / floor:.2f}" if floor and unit in ("s",) else ""
-        v = show(value, unit)
-        f = show(floor, unit) if floor is not None else ""
-        print(f"{name:<62} {v:>12} {('floor ' + f) if f else '':>18} {('ratio ' + ratio) if ratio else '':>12}"
-              f"  {target:<16} {verdict(name, value, floor)}")
-        lines.append(f"| {name.strip()} | {v} | {f} | {ratio} | {target} | {verdict(name, value, floor)} |")
-    if markdown:
-        markdown.parent.mkdir(parents=True, exist_ok=True)
-        markdown.write_text("\n".join(lines) + "\n", "utf-8")
-
-
 def main() -> int:
     ap = argparse.ArgumentParser(description=__doc__.splitlines()[0])
     ap.add_argument("--files", type=int, default=200, help="machine files in the batch (default 200)")
-    ap.add_argument("--repeat", type=int, default=1, help="runs of each batch, median taken (default 1: the "
-                    "default run takes about two minutes on two cores)")
-    ap.add_argument("--markdown", type=Path, help="also write the figures as a Markdown table to this file")
+    ap.add_argument("--pairs", type=int, default=paired.MIN_PAIRS,
+                    help=f"pairs of runs per figure, at least {paired.MIN_PAIRS} (default {paired.MIN_PAIRS})")
+    ap.add_argument("--rerun-files", type=int, default=1000, help="files in the re-run figure (0: leave it out)")
     ap.add_argument("--peak-memory", nargs=2, type=Path, metavar=("PLANT", "OUT"), help=argparse.SUPPRESS)
     a = ap.parse_args()
     if a.peak_memory:
         print(json.dumps(peak_memory(*a.peak_memory, workers=2)))
         return 0
-    t0, load0 = time.perf_counter(), os.getloadavg()[0]
-    rows = run(a.files, a.repeat)
-    report(rows, a.markdown)
-    note = (f"(benchmark took {time.perf_counter() - t0:.0f} s; cpus: {os.cpu_count()}; python {sys.version.split()[0]}; "
-            f"load average {load0:.2f} at the start, {os.getloadavg()[0]:.2f} at the end: other work on the machine "
-            "slows the wall times, the CPU times per sheet are not affected)")
-    print(note)
-    if a.markdown:
-        with a.markdown.open("a", encoding="utf-8") as fh:
-            fh.write(f"\n{note}\n")
+    t0, before = time.perf_counter(), paired.conditions()
+    rows = run(a.files, a.pairs, a.rerun_files)
+    print(paired.HEADER)
+    print("\n".join(rows))
+    print(f"<!-- bench_batch.py, {time.perf_counter() - t0:.0f} s; at the start: {before}; at the end: "
+          f"{paired.conditions()} -->")
     return 0
 
 

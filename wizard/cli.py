@@ -17,8 +17,10 @@ import typer
 
 from reports.notices import CAUTION_LINE
 from wizard import __version__
+from wizard.cli_params import PlainValuesGroup
 
 app = typer.Typer(
+    cls=PlainValuesGroup,  # paths, strings and integers read without pydantic (wizard/cli_params.py)
     name="relaywright",
     help="Protection settings for medium-voltage motors and plant generators: from nameplate and system data to "
          "a checked, signed settings sheet.",

@@ -3,6 +3,8 @@
 IEC 60255-151 and IEC 60255-127 let the relay maker declare an assigned error for operate time as "± x % of the
 theoretical time or ± y ms, whichever is greater". relaywright uses that template with x = 5 % and y = 30 ms unless
 the engineer gives the maker's figures (METHODS.md §12.2); the rule is printed beside every test point.
+
+Methods: machines/METHODS.md §12 (test tolerances; 12.2 the rule, 12.3 check values).
 """
 
 from __future__ import annotations

@@ -8,6 +8,8 @@ a CT carrying a fully offset fault current not saturate:
     (1 + X/R) · I_f · Z_b ≤ 20
 
 with I_f in per unit of the CT rated primary and Z_b the connected burden in per unit of the standard burden.
+
+Methods: machines/METHODS.md §11 (CT saturation; 11.1 the criterion, 11.2 check values).
 """
 
 from __future__ import annotations

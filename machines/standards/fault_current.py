@@ -1,4 +1,7 @@
-"""Short-circuit currents at a bus: three-phase from the fault level, phase-to-phase, first-cycle asymmetry."""
+"""Short-circuit currents at a bus: three-phase from the fault level, phase-to-phase, first-cycle asymmetry.
+
+Methods: machines/METHODS.md §4 (short circuit; 4.1 the equations, 4.2 check values).
+"""
 
 from __future__ import annotations
 

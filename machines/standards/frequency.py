@@ -6,6 +6,8 @@
 - Off-frequency bands: which band a frequency lies in, the fraction of a band's accumulated-time allowance an event
   uses (IEEE C37.106 describes turbine limits as bands with a time allowance accumulated over the turbine's life;
   the numbers are the maker's).
+
+Methods: machines/METHODS.md §8 (frequency; 8.1 bands, 8.3 swing equation and SFR model, 8.4 check values).
 """
 
 from __future__ import annotations

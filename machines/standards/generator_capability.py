@@ -3,6 +3,8 @@
 Equations only, no policy: short-time armature capability (IEEE C50.13 / IEC 60034-1), volts per hertz on a
 common base, base impedance and loss-of-field offset-mho circles, the sustained fault current without field forcing,
 the voltage-restrained pickup of 51V, motoring power by prime mover, and the percentage-differential threshold.
+
+Methods: machines/METHODS.md §9 (generator elements, check values 9.6) and §10 (armature capability).
 """
 
 from __future__ import annotations

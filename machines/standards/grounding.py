@@ -11,6 +11,8 @@ transformer in the neutral), METHODS.md §7.1::
 
 A fault at a fraction x of the winding from the neutral drives the neutral to x·V_LN, so a neutral overvoltage
 element picked up at (1 − c)·V_LN covers the fraction c of the winding measured from the terminals.
+
+Methods: machines/METHODS.md §7 (stator earth fault; 7.1 the equations, 7.3 check values).
 """
 
 from __future__ import annotations

@@ -14,6 +14,8 @@ IEEE form (IEEE Std C37.112-2018), operate and electromechanical-disc reset::
 
 Both forms are the same expression with (k, c, α) ↔ (A, B, p); relaywright uses a single equation and states which
 constants it used on the sheet. The time multiplier is applied directly (no division by a relay-family constant).
+
+Methods: machines/METHODS.md §1 (inverse-time curves; 1.2 constants, 1.4 check values).
 """
 
 from __future__ import annotations

@@ -8,6 +8,8 @@ editable default; the maker's values in the machine file always win.
 
 The trip characteristic of a negative-sequence element is t = K / I2² (METHODS.md §6.3); a terminal
 phase-to-phase fault drives I2 = E / (X1 + X2).
+
+Methods: machines/METHODS.md §6 (generator negative sequence; 6.4 check values).
 """
 
 from __future__ import annotations

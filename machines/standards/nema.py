@@ -3,6 +3,8 @@
 Tables are data with one lookup each that raises a clear error. Sources: NEMA MG 1 10.37.2 (code letters), MG 1
 14.36 / Part 20 (voltage unbalance definition, derating figure 14-1), NEMA MG 10 Table 2-3 (starts per hour), as
 reproduced in the EASA Electrical Engineering Handbook and digitised for METHODS.md §2.3, 3.1 and 5.2.
+
+Methods: machines/METHODS.md §3.1 (code letters), §5.1–5.2 (voltage unbalance and derating), §2.3 (MG 10 starts).
 """
 
 from __future__ import annotations

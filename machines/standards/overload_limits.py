@@ -1,6 +1,8 @@
 """Limits on a motor's separate overload device: NFPA 70 (NEC) 430.32(A)(1).
 
 These are NEC percentages of nameplate full-load current, not IEC rules (IEC 60034-1 has no service-factor rule).
+
+Methods: machines/METHODS.md §10 (overload limits, with check values).
 """
 
 from __future__ import annotations

@@ -10,6 +10,8 @@ use and why is the protection rule's business (``machines.protection.thermal_ove
 
 Glossary: ``current`` I [A or pu], ``pickup_current`` k·I_B [same unit as I], ``time_constant`` τ [s],
 ``prior_current`` I_P, the steady current before the overload [same unit as I], θ thermal level [-].
+
+Methods: machines/METHODS.md §2 (thermal replica; 2.1 equations, 2.2 fitting, 2.3 starts, 2.5 check values).
 """
 
 from __future__ import annotations

@@ -3,6 +3,8 @@
 The voltage unbalance factor V2/V1 (IEC 60034-1 style) sits beside the NEMA percent definition in
 ``machines.standards.nema``. The rotor heating weight K turns the two sequence currents into one equivalent heating
 current I_eq² = I1² + K·I2², which is what biases a thermal replica for unbalance.
+
+Methods: machines/METHODS.md §5 (unbalance; 5.1 definitions, 5.3–5.4 heating and limits, 5.5 check values).
 """
 
 from __future__ import annotations
