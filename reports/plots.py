@@ -492,9 +492,9 @@ def figure(d, width: float, height: float, ct_ratio: tuple[float, str] | None = 
                         [[10.0, y + 2.6, 34.0, y + 2.6]], None])
         if pen.marker:
             ops.append(_markers(pen, [(22.0, y + 2.6)]))
-        _text(ops, 40.0, y, str(i + 1), bold=True)
+        _text(ops, 47.0, y, str(i + 1), bold=True, anchor="end")  # right-aligned: "10" keeps clear of its text
         for k, line in enumerate(lines):
-            _text(ops, 50.0, y - 10.0 * k, line)
+            _text(ops, 52.0, y - 10.0 * k, line)
         y -= 10.0 * len(lines) + 2.0
     return {"w": round(width, 2), "h": round(height, 2), "ops": ops}
 

@@ -432,7 +432,9 @@ def _drawings(record, width: float, frame_height: float) -> list:
     half = (frame_height - 60) / 2 - 24
     for i, d in enumerate(drawings):
         main = d.kind == "time-current" and i == 0 and record.kind == "induction-motor"
-        height = full if (main or len(drawings) == 1) else half
+        # the motor's time-current drawing and the R-X plane (zones, capability and limiter close together, a long
+        # legend) take a page each; the other drawings half a page
+        height = full if (main or d.kind == "r-x" or len(drawings) == 1) else half
         if i and main is False and len(drawings) > 1 and i == 1 and drawings[0].kind == "time-current" \
                 and record.kind == "induction-motor":
             out.append({"t": "break"})

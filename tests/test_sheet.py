@@ -102,8 +102,9 @@ def test_page_size(size, expected):
 def test_page_size_from_the_machine_file_and_page_count():
     reader = PdfReader(io.BytesIO(build_sheet(motor_record(page_size="letter"))))
     assert float(reader.pages[0].mediabox.width) == pytest.approx(LETTER_PT[0])
-    # regression pin of this fixture's layout: data and settings, keying list, drawings two to a page, the tests
-    assert len(reader.pages) == 7
+    # regression pin of this fixture's layout: data and settings, keying list, the time-current and the R-X drawings
+    # a page each, the other two drawings on one page, the tests
+    assert len(reader.pages) == 8
 
 
 def test_bad_page_size():

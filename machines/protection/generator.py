@@ -421,10 +421,13 @@ def _rx_drawing(ctx: StudyContext, fs: FunctionSettings, by_id: dict[str, Functi
                               (0.0, (fwd - rev) / 2.0), (fwd + rev) / 2.0, "dashed"))
         series.append(Series(f"78 right blinder, +{d:.4g} Ω", [(d, -rev), (d, fwd)], "dotted"))
         series.append(Series(f"78 left blinder, −{d:.4g} Ω", [(-d, -rev), (-d, fwd)], "dotted"))
-    pts = [p for s_ in series for p in s_.points]
-    low = min([c.center[1] - c.radius for c in circles] + [y for _, y in pts])
-    high = max([c.center[1] + c.radius for c in circles] + [y for _, y in pts])
-    wide = max([abs(c.center[0]) + c.radius for c in circles] + [abs(x) for x, _ in pts] + [abs(low) * 0.6])
+    # the range frames the relay's characteristics (zones, mho circles, blinders) and the rated load point; the
+    # capability curve and the limiter run on beyond it at low power and are cut at the frame's edge
+    frame = [p for s_ in series if s_.style == "points" or s_.label.startswith("78")
+             for p in s_.points]
+    low = min([c.center[1] - c.radius for c in circles] + [y for _, y in frame])
+    high = max([c.center[1] + c.radius for c in circles] + [y for _, y in frame])
+    wide = max([abs(c.center[0]) + c.radius for c in circles] + [abs(x) for x, _ in frame] + [abs(low) * 0.6])
     lim = max(abs(low), high, wide) * 1.2
     return Drawing(kind="r-x", title="Impedance elements in the R-X plane: 40 loss of field"
                    + (", 21" if f21 is not None else "") + (", 78" if f78 is not None else ""),
