@@ -6,6 +6,8 @@ function does not apply to this machine). It computes each value by its guide's 
 the relay's setting step (relay-side, ``[relay]`` of the machine file); the rule then checks the value it got
 back, so an override and the rounding are checked exactly like a computed value, and the test points are computed
 from what the relay will actually hold.
+
+Methods: machines/METHODS.md §12 (test points and their tolerances).
 """
 
 from __future__ import annotations

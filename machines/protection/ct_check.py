@@ -4,6 +4,8 @@ The CT is not a protection function with settings, so this rule returns no funct
 machine-wide checks (``ctx.extras["checks"]``) and its numbers to ``ctx.derived``, where the sheet prints them.
 Saturation is a warning, not a failure: a saturated CT still delivers current far above a 50P pickup for part of
 every cycle, so the element operates, later; whether that is acceptable is the relay maker's CT requirement.
+
+Methods: machines/METHODS.md §11.1 (the criterion, the CT ratio and a fused contactor's trip block).
 """
 
 from __future__ import annotations

@@ -4,6 +4,9 @@
 transformers, the machine's negative-sequence capability, the charging current and the system's initial rate of
 change of frequency) and keeps it in ``ctx.extras["generator"]`` as a :class:`GeneratorBasis`; the rule modules
 read that object and never import this module. ``drawings`` turns the rules' settings into the sheet's curves.
+
+Methods: machines/METHODS.md §9 (common quantities, the connection and the system seen from the terminals), §6
+(negative-sequence capability), §7.1 (capacitance of the zone and the grounding resistor), §8.3 (initial RoCoF).
 """
 
 from __future__ import annotations

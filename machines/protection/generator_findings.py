@@ -1,4 +1,4 @@
-"""Findings several generator rules word alike."""
+"""Findings several generator rules word alike (a pickup's share of what it detects: METHODS.md §9.1)."""
 
 from __future__ import annotations
 

@@ -3,6 +3,8 @@
 Every generator test point that is not a plain balanced current carries its phasors explicitly, relay-side
 (CT and VT secondary), so that a test set can play it and a reviewer can check it against every stage of the
 function (see :class:`machines.record.TestPoint`).
+
+Methods: machines/METHODS.md §12.1 (test points).
 """
 
 from __future__ import annotations

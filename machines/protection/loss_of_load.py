@@ -1,8 +1,8 @@
 """37 loss of load (undercurrent), when a minimum normal load is given.
 
-Rule [P]: pickup 80 % of the lowest normal running current, 5 s, armed only after the start is complete. A motor
-running unloaded still draws its magnetising current, which the model does not know: the pickup must stay above
-the measured no-load current (check at commissioning), else use an underpower element.
+Rule (METHODS.md §13.3) [P]: pickup 80 % of the lowest normal running current, 5 s, armed only after the start is
+complete. A motor running unloaded still draws its magnetising current, which the model does not know: the pickup
+must stay above the measured no-load current (check at commissioning), else use an underpower element.
 """
 
 from __future__ import annotations

@@ -1,4 +1,7 @@
-"""Induction-motor family: preparation (the start study), the rules in sheet order, and the time-current drawing."""
+"""Induction-motor family: preparation (the start study), the rules in sheet order, and the time-current drawing.
+
+Methods: machines/METHODS.md §3 (the start and its profiles: §3.3).
+"""
 
 from __future__ import annotations
 

@@ -3,6 +3,9 @@ electrical centre and the out-of-step blinders, and the current of an inadverten
 
 Equations only, no policy. Reactances are per unit on the generator's rating; impedances seen at the generator
 terminals (R, X), with the generator behind the origin on −X and the system on +X (METHODS.md §9.7).
+
+Methods: machines/METHODS.md §9 (the system seen from the terminals), §9.7 (electrical centre and blinders), §9.8
+(energising current), §9.12 (mho reach).
 """
 
 from __future__ import annotations

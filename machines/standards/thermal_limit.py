@@ -8,6 +8,8 @@ the minimum melting curve the same way. Between the points a curve is read as a 
 Beyond the points of a thermal-limit curve the heat a rotor stands is taken as constant (I²t = const, the
 adiabatic limit that locked-rotor and accelerating curves approach at high current) [D]; beyond a fuse's points
 nothing is assumed (the caller says the curve does not reach).
+
+Methods: machines/METHODS.md §3.5 (curves given as points, with check values); the fuse checks are in §4.3.
 """
 
 from __future__ import annotations
