@@ -393,6 +393,14 @@ def _start_checks(b: MotorBasis, case: MachineCase, checks: list[Check]) -> None
                                     "to the data sheet's torques and rated slip instead (METHODS.md §3.6). Its pull-up "
                                     "dip lies at high speed, where the load torque is large, so it is likely to "
                                     f"overstate the acceleration time; {settle} would settle it."))
+    c = b.curve
+    if m.pull_up_torque is not None and not maker and c.pull_up > m.pull_up_torque * (1.0 + CONVERGED):
+        gave = f", already giving up {c.departure:.1%} of the data sheet ({c.departure_from})" if not c.fallback else ""
+        checks.append(Check("warn", f"The maker's pull-up torque is {m.pull_up_torque:.2f} pu, but "
+                                    f"{_model_words(b)}, fitted to it as well, reaches only {c.pull_up:.2f} pu{gave} "
+                                    "(METHODS.md §3.6): between standstill and breakdown the studied torque may be "
+                                    "higher than the motor's, and the start shorter. The maker's torque–speed curve "
+                                    "(machine.speed_curve) would settle it."))
     if s.accelerates and b.promised:
         checks.append(Check("warn", f"At the minimum starting voltage {v:.3f} pu {_model_words(b)} (pull-up torque "
                                     f"{b.curve.pull_up:.2f} pu) would stall, although the "

@@ -48,6 +48,14 @@ ACCEPTED = 0.05
 WEAK_WEIGHT = 0.05
 #: the common rotor leakage the weak condition draws Xc towards [pu]
 COMMON_LEAKAGE = 0.02
+#: the search stops at a start whose largest residual is below this (the equations solved) [-]
+SOLVED = 1e-4
+#: two starts whose costs (sums of squared residuals) agree within this share end at the same optimum [-]
+AGREE = 0.01
+#: after this many starts (those from the data sheet) a converged fit is kept without trying the fixed ones [-]
+ANALYTIC_STARTS = 3
+#: a Levenberg–Marquardt run stops when an iteration lowers its cost by less than this share [-]
+STALLED = 1e-9
 #: iterations of one Levenberg–Marquardt run, at most [-]
 MAX_ITERATIONS = 40
 #: parameters are kept within these bounds [pu]
@@ -325,7 +333,7 @@ def _levenberg_marquardt(lp: np.ndarray, fun) -> tuple[np.ndarray, np.ndarray]:
         lam = max(lam * _DAMPING_TRIALS[j], 1e-9)
         lp = trials[j]
         rows = fun(np.vstack((lp, lp + eye)))
-        if cost - costs[j] < 1e-9 * cost:
+        if cost - costs[j] < STALLED * cost:
             break
     return lp, rows[0]
 
@@ -391,7 +399,8 @@ def fit_double_cage(rated_slip: float, power_factor: float, efficiency: float, l
     = T_pu·T_n; T_n = η·cos φ/(1 − s_r) (:func:`rated_airgap_torque`). Weak conditions fix what the data sheet
     cannot see: X1 = X2 (the leakage split) and, without a target, Xc = 0.02 pu. Levenberg–Marquardt on ln R1 …
     ln Xc from several starting points (:func:`_initial_guesses`), the best kept; the search stops at a start that
-    solves the equations, or when two starts end at the same least-squares optimum. With a target it starts from
+    solves the equations (:data:`SOLVED`), when two starts end at the same least-squares optimum (:data:`AGREE`),
+    or after the starts from the data sheet when one of them converged. With a target it starts from
     the fit without it and from two outer cages of high resistance. Curves are read on a log-spaced grid of slips
     (:data:`FIT_GRID_POINTS`), the maximum and minimum refined by a parabola.
 
@@ -424,17 +433,19 @@ def fit_double_cage(rated_slip: float, power_factor: float, efficiency: float, l
         guess = _initial_guesses(data)[0]
         starts = [np.log(free.parameters)] + [np.concatenate((guess[:3], np.log([r2, x2]), guess[5:6], [math.log(x3)],
                                                               guess[7:])) for r2, x2, x3 in DIP_STARTS]
-    best, best_cost = None, math.inf
+    best, best_cost, tried = None, math.inf, 0
     for lp0 in starts:
         if not np.all(np.isfinite(fun(lp0[None, :]))):
             continue
         lp, f = _levenberg_marquardt(lp0, fun)
         core = f[:n_eq]
         cost = float(core @ core)
-        again = best is not None and abs(cost - best_cost) <= 1e-3 * best_cost  # the same least-squares optimum
+        again = best is not None and abs(cost - best_cost) <= AGREE * best_cost  # the same least-squares optimum
         if cost < best_cost:
             best, best_cost = (lp, core), cost
-        if np.abs(best[1]).max() < 1e-6 or again:
+        tried += 1
+        worst = np.abs(best[1]).max()
+        if worst < SOLVED or again or (tried >= ANALYTIC_STARTS and worst <= CONVERGED):
             break
     lp, core = best
     p = np.exp(lp)
