@@ -52,8 +52,9 @@ COMMON_LEAKAGE = 0.02
 SOLVED = 1e-4
 #: two starts whose costs (sums of squared residuals) agree within this share end at the same optimum [-]
 AGREE = 0.01
-#: after this many starts (those from the data sheet) a converged fit is kept without trying the fixed ones [-]
-ANALYTIC_STARTS = 3
+#: the starts from the data sheet, all tried unless one solves the equations; after them a converged fit, or two
+#: starts that agree, end the search [-]
+ANALYTIC_STARTS = 4
 #: a Levenberg–Marquardt run stops when an iteration lowers its cost by less than this share [-]
 STALLED = 1e-9
 #: iterations of one Levenberg–Marquardt run, at most [-]
@@ -339,8 +340,8 @@ def _levenberg_marquardt(lp: np.ndarray, fun) -> tuple[np.ndarray, np.ndarray]:
 
 
 def _initial_guesses(data: tuple[float, ...]) -> list[np.ndarray]:
-    """Starting points: one from the data sheet by the approximate circuit (below), then variations of the leakage
-    split and the outer cage.
+    """Starting points: four from the data sheet by the approximate circuit (below), the stator taking 45 %, 30 %
+    and 15 % of the leakage, then fixed variations of the outer cage and the running cage's leakage.
 
     The stator resistance from the loss balance at rated point (R1 = cos φ − T_n, the stator taking all losses
     but the rotor's), the magnetising reactance from the reactive current, the running cage from the rated slip
@@ -361,7 +362,7 @@ def _initial_guesses(data: tuple[float, ...]) -> list[np.ndarray]:
     x_lr = math.sqrt(max(z_lr * z_lr - (r1 + r_lr) ** 2, (0.3 * z_lr) ** 2))
     r3 = max(r3, 1e-4)
     out = []
-    for share, xc in ((0.45, COMMON_LEAKAGE), (0.3, COMMON_LEAKAGE), (0.45, 0.1 * x_tot)):
+    for share, xc in ((0.45, COMMON_LEAKAGE), (0.3, COMMON_LEAKAGE), (0.45, 0.1 * x_tot), (0.15, COMMON_LEAKAGE)):
         x1 = share * x_tot
         x3 = max(x_tot - x1 - xc, 0.02)
         zp = complex(r_lr, max(x_lr - x1 - xc, 0.2 * x_lr))
@@ -399,8 +400,8 @@ def fit_double_cage(rated_slip: float, power_factor: float, efficiency: float, l
     = T_pu·T_n; T_n = η·cos φ/(1 − s_r) (:func:`rated_airgap_torque`). Weak conditions fix what the data sheet
     cannot see: X1 = X2 (the leakage split) and, without a target, Xc = 0.02 pu. Levenberg–Marquardt on ln R1 …
     ln Xc from several starting points (:func:`_initial_guesses`), the best kept; the search stops at a start that
-    solves the equations (:data:`SOLVED`), when two starts end at the same least-squares optimum (:data:`AGREE`),
-    or after the starts from the data sheet when one of them converged. With a target it starts from
+    solves the equations (:data:`SOLVED`); after the starts from the data sheet, at a converged fit or when two
+    starts end at the same least-squares optimum (:data:`AGREE`). With a target it starts from
     the fit without it and from two outer cages of high resistance. Curves are read on a log-spaced grid of slips
     (:data:`FIT_GRID_POINTS`), the maximum and minimum refined by a parabola.
 
@@ -445,7 +446,7 @@ def fit_double_cage(rated_slip: float, power_factor: float, efficiency: float, l
             best, best_cost = (lp, core), cost
         tried += 1
         worst = np.abs(best[1]).max()
-        if worst < SOLVED or again or (tried >= ANALYTIC_STARTS and worst <= CONVERGED):
+        if worst < SOLVED or (tried >= ANALYTIC_STARTS and (again or worst <= CONVERGED)):
             break
     lp, core = best
     p = np.exp(lp)
