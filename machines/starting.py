@@ -10,10 +10,13 @@ Models used (and stated on the sheet):
   with the source impedance Z_s the terminal voltage is V = V_bus·Z_LR/(Z_LR + Z_s), the two magnitudes added
   arithmetically because their angles are unknown (conservative: it gives the lower voltage).
 - **Torque–speed curve**: the maker's curve where the file gives it (:func:`maker_curve`, linear between its
-  points, joined to the rated point and to zero torque at synchronous speed), else the double-cage curve of
-  :mod:`machines.standards.double_cage` fitted to the locked-rotor, pull-up and breakdown torques and the rated
-  point (:func:`model_curve`).
-- **Current–speed curve**: the maker's where given, else I² = I_0² + (I_LR² − I_0²)·(1 + a²)/((a/s)² + 1), a
+  points, joined to the rated point and to zero torque at synchronous speed), else the double-cage equivalent
+  circuit of :mod:`machines.standards.equivalent_circuit` fitted to the data sheet — rated slip, power factor and
+  efficiency, locked-rotor current and torque, breakdown torque and, for the long end of the range, a pull-up
+  torque (:func:`model_curve`, METHODS.md §3.6). Where the circuit cannot be fitted to the data sheet the sibling
+  model of :mod:`machines.standards.double_cage` (two cages by Kloss's equation) stands in, and says so.
+- **Current–speed curve**: the maker's where given; with the circuit its own stator current |I1(s)|; else (the
+  maker's torques without currents, or the sibling model) I² = I_0² + (I_LR² − I_0²)·(1 + a²)/((a/s)² + 1), a
   magnetising current I_0 = sin φ_rated plus one rotor branch R/s + jX whose ratio a = R/X puts the curve through
   I_LR at standstill and rated current at rated slip (the approximate equivalent circuit with one rotor branch)
   [D]. A double-cage rotor's current falls earlier in the start than this one's, so the heat a start puts into
@@ -27,7 +30,7 @@ Models used (and stated on the sheet):
 from __future__ import annotations
 
 import math
-from dataclasses import dataclass
+from dataclasses import dataclass, replace
 from functools import lru_cache
 
 import numpy as np
@@ -35,6 +38,16 @@ import numpy as np
 from machines.standards.double_cage import (  # noqa: F401  (re-exported)
     TwoCage, breakdown_slip, fit_two_cage, kloss_torque, outer_slip_for_pull_up, pull_up_torque,
 )
+from machines.standards.equivalent_circuit import EQUATIONS, fit_double_cage
+
+#: what the sheet calls the model curve
+CIRCUIT_SOURCE = ("double-cage equivalent circuit fitted to the data sheet (stator impedance, magnetising reactance, "
+                  "two rotor cages)")
+KLOSS_SOURCE = "double-cage curve (two cages by Kloss's equation) fitted to the data sheet's torques and rated slip"
+#: the data-sheet equations of the fit, as the sheet names them
+DATUM_NAMES = dict(zip(EQUATIONS, ("rated power factor (active current)", "rated power factor (reactive current)",
+                                   "rated torque (efficiency)", "locked-rotor current", "locked-rotor torque",
+                                   "breakdown torque", "pull-up torque")))
 
 GRID_POINTS = 600  #: speed points of the integration grid [-]
 END_SLIP_FACTOR = 1.5  #: the start ends at this multiple of the running slip [-]
@@ -228,13 +241,22 @@ _CURVE_SPEEDS = np.unique(np.concatenate((np.linspace(0.0, 0.9, 181), 1.0 - np.g
 class MotorCurve:
     """Torque [pu of rated torque] and current [pu of full-load current] against speed [pu of synchronous], at
     rated voltage, tabulated; ``source`` says where the curve comes from, ``pull_up`` is its least torque from
-    standstill to breakdown speed [pu]."""
+    standstill to breakdown speed [pu].
+
+    A model curve also carries ``target``, the pull-up torque it was fitted to [pu] (None: none), ``departure``,
+    the largest relative departure of the model from the data sheet's own values [-], ``departure_from``, which
+    datum that is, and ``fallback``, why the sibling model stands in for the circuit (empty when it does not).
+    """
 
     speeds: np.ndarray
     torques: np.ndarray
     currents: np.ndarray
     source: str
     pull_up: float
+    target: float | None = None
+    departure: float = 0.0
+    departure_from: str = ""
+    fallback: str = ""
 
     def torque(self, speed) -> np.ndarray:
         return np.interp(speed, self.speeds, self.torques)
@@ -242,30 +264,65 @@ class MotorCurve:
     def current(self, speed) -> np.ndarray:
         return np.interp(speed, self.speeds, self.currents)
 
+    def with_torques(self, torques: np.ndarray, source: str) -> MotorCurve:
+        """The same curve with other torques (the currents kept)."""
+        return replace(self, torques=torques, source=source)
+
+
+def _frozen(*arrays: np.ndarray) -> None:
+    for a in arrays:
+        a.setflags(write=False)
+
 
 @lru_cache(maxsize=128)
 def model_curve(locked_rotor_torque: float, breakdown_torque: float, rated_slip: float, locked_rotor_current: float,
-                power_factor: float, pull_up: float) -> MotorCurve:
-    """The double-cage curve (:mod:`machines.standards.double_cage`) through T_LR, the rated point and T_b whose
-    pull-up torque is nearest ``pull_up`` [pu], with the one-branch current model.
+                power_factor: float, efficiency: float, pull_up: float | None = None) -> MotorCurve:
+    """The double-cage equivalent circuit fitted to the data sheet (:func:`fit_double_cage`; METHODS.md §3.6),
+    tabulated: its torque and its own stator current against speed; ``pull_up`` [pu] is the pull-up torque to fit
+    to (the long end of the range), None for the fit to the data sheet alone (the short end).
+
+    When the fit to the data sheet alone departs from it by more than
+    :data:`~machines.standards.equivalent_circuit.ACCEPTED`, the sibling model of
+    :mod:`machines.standards.double_cage` (two cages by Kloss's equation, exact at T_LR, the rated point and T_b,
+    with the one-branch current model) is used instead and ``fallback`` says why.
 
     Examples
     --------
-    >>> c = model_curve(0.8, 2.2, 0.01, 6.0, 0.88, 0.72)
-    >>> round(float(c.torque(0.0)), 3), round(c.pull_up, 3), round(float(c.current(0.0)), 3)
-    (0.8, 0.72, 6.0)
+    >>> c = model_curve(0.8, 2.2, 12 / 1800, 6.2, 0.89, 0.958)
+    >>> round(float(c.torque(0.0)), 3), round(c.pull_up, 3), round(float(c.current(0.0)), 3), c.fallback
+    (0.8, 0.8, 6.2, '')
     """
     t_b = max(breakdown_torque, locked_rotor_torque * 1.0001)
-    outer, reached = outer_slip_for_pull_up(rated_slip, locked_rotor_torque, t_b, pull_up)
-    cage = fit_two_cage(rated_slip, locked_rotor_torque, t_b, outer)
+    data = (rated_slip, power_factor, efficiency, locked_rotor_current, locked_rotor_torque, t_b)
+    free = fit_double_cage(*data)
+    n = _CURVE_SPEEDS
+    slips = np.maximum(1.0 - n, 1e-9)
+    if not free.usable:
+        why = (f"the double-cage equivalent circuit departs from the data sheet by {free.worst:.0%} "
+               f"({DATUM_NAMES[free.worst_equation]}) at best")
+        return _kloss_curve(locked_rotor_torque, t_b, rated_slip, locked_rotor_current, power_factor, pull_up, why)
+    fit = free if pull_up is None else fit_double_cage(*data, pull_up)
+    torques = fit.torque(slips)
+    torques[-1] = 0.0 if n[-1] >= 1.0 else torques[-1]
+    currents = fit.current(slips)
+    _frozen(torques, currents)
+    return MotorCurve(n, torques, currents, CIRCUIT_SOURCE, fit.pull_up, pull_up, fit.worst,
+                      DATUM_NAMES[fit.worst_equation])
+
+
+def _kloss_curve(locked_rotor_torque: float, breakdown_torque: float, rated_slip: float, locked_rotor_current: float,
+                 power_factor: float, pull_up: float | None, why: str) -> MotorCurve:
+    """The sibling model: two cages by Kloss's equation through T_LR, the rated point and T_b whose pull-up torque is
+    nearest ``pull_up`` (T_LR when None: no dip), with the one-branch current model."""
+    outer, reached = outer_slip_for_pull_up(rated_slip, locked_rotor_torque, breakdown_torque,
+                                            locked_rotor_torque if pull_up is None else pull_up)
+    cage = fit_two_cage(rated_slip, locked_rotor_torque, breakdown_torque, outer)
     n = _CURVE_SPEEDS
     torques = cage.torque(np.maximum(1.0 - n, 1e-9))
     torques[-1] = 0.0 if n[-1] >= 1.0 else torques[-1]
     currents = motor_current(n, locked_rotor_current, rated_slip, power_factor)
-    torques.setflags(write=False)
-    currents.setflags(write=False)
-    return MotorCurve(n, torques, currents, "double-cage curve (two cages by Kloss's equation) fitted to the data "
-                      "sheet's torques and rated slip", float(reached))
+    _frozen(torques, currents)
+    return MotorCurve(n, torques, currents, KLOSS_SOURCE, float(reached), pull_up, 0.0, "", why)
 
 
 def maker_curve(speed: tuple[float, ...], torque: tuple[float, ...], current: tuple[float, ...],
@@ -342,12 +399,12 @@ def study_start(*, voltage: float, curve: MotorCurve, rated_current: float, iner
     """Simulate a start on ``curve`` at a constant terminal ``voltage`` [pu], from ``initial_speed`` [pu] (0 for
     a start from standstill, above 0 for a re-acceleration); other inputs SI or pu as named.
 
-    >>> c = model_curve(0.8, 2.2, 0.01, 6.0, 0.88, 0.8)
+    >>> c = model_curve(0.8, 2.2, 0.01, 6.0, 0.88, 0.95)
     >>> s = study_start(voltage=1.0, curve=c, rated_current=100.0, inertia=100.0, synchronous_speed=188.5,
     ...                 rated_torque=5000.0, rated_slip=0.01, load_profile="quadratic", load_torque_rated=0.9,
     ...                 load_breakaway=0.1)
     >>> s.accelerates, round(s.acceleration_time, 1)
-    (True, 6.7)
+    (True, 3.6)
     """
     v2 = voltage * voltage
     n_rated = 1.0 - rated_slip

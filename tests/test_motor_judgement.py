@@ -195,15 +195,51 @@ def test_no_pull_up_gives_a_range_and_the_long_end():
 
 def test_a_promised_start_is_not_declared_impossible():
     # issue 10 item 2: the double-cage curve stalls, the data sheet's torques promise the start: a warning that names
-    # the datum, a finite acceleration time, no "does not accelerate"
+    # the datum, a finite acceleration time, no "does not accelerate". The chiller without its maker's curves,
+    # specified to start at 0.75 pu: the circuit fitted to the assumed pull-up torque stalls near 80 % speed, while
+    # T_LR·V², 0.85·T_LR·V² and T_b·V² all exceed the load torque where they apply
     case, w = load_case(EXAMPLES / "chiller-compressor-motor.toml")
     data = json.loads(json.dumps(case.entered))
     for key in ("speed_curve", "pull_up_torque", "thermal_limit"):
         data["machine"].pop(key, None)
+    data["supply"]["minimum_starting_voltage"] = "0.75 pu"
     rec = run_study(*case_from_dict(data))
     assert rec.derived["acceleration_time"].value is not None
     assert any("machine.speed_curve" in m and "purchase" in m for m in messages(rec, "warn"))
     assert not any("does not accelerate" in m for m in messages(rec, "fail"))
+
+
+def test_the_model_curve_says_what_it_is_and_how_far_it_departs():
+    # issue 10 item 2 (METHODS.md §3.6): the double-cage equivalent circuit fitted to the data sheet; the long end fitted
+    # also to the assumed pull-up torque 0.85 × T_LR, with the pull-up it reaches and its departure on the record
+    rec = study()
+    assert rec.derived["torque_curve"].value.startswith("double-cage equivalent circuit fitted to the data sheet")
+    t_lr = 0.9  # test_motor_rules.BASE
+    pull_up = rec.derived["pull_up_torque"]
+    assert f"assumed {0.85 * t_lr:.2f} pu" in pull_up.note and f"reaches {pull_up.value:.2f} pu" in pull_up.note
+    dep = rec.derived["torque_curve_departure"]
+    assert 0.0 < dep.value < 0.15 and "locked-rotor torque" in dep.note
+    (ok,) = [m for m in messages(rec, "ok") if m.startswith("The motor accelerates")]
+    assert f"departs from the data sheet by up to {dep.value:.1%}" in ok and "set on the long end" in ok
+
+
+def test_a_maker_pull_up_the_circuit_cannot_reach_is_a_warning():
+    # METHODS.md §3.6: a constant-parameter double cage cannot dip to 0.6 pu under T_LR = 0.9 pu while it holds the
+    # data sheet: the torque studied may be higher than the motor's; the maker's curve would settle it
+    rec = study(machine__pull_up_torque="0.6 pu")
+    (w,) = [m for m in messages(rec, "warn") if "reaches only" in m]
+    assert "0.60 pu" in w and "machine.speed_curve" in w
+    assert study(machine__pull_up_torque="0.9 pu").derived["pull_up_torque"].note == "the maker's"  # no dip
+
+
+def test_a_data_sheet_no_circuit_can_have_falls_back_to_the_kloss_curve_with_a_warning():
+    # METHODS.md §3.6: I_LR 3.6 pu with T_LR 2.1 and T_b 3.4 pu: no double-cage circuit holds all three (its
+    # reactance only falls towards standstill); the two-cage Kloss curve stands in, and a warning says so
+    rec = study(machine__locked_rotor_current="3.6 pu", machine__locked_rotor_torque="2.1 pu",
+                machine__breakdown_torque="3.4 pu")
+    assert "Kloss" in rec.derived["torque_curve"].value and "torque_curve_departure" not in rec.derived
+    (w,) = [m for m in messages(rec, "warn") if m.startswith("The torque curve:")]
+    assert "departs from the data sheet" in w and "overstate the acceleration time" in w
 
 
 # ---------------------------------------------------------------------------------------------------- items 7–10

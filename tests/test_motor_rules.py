@@ -35,7 +35,7 @@ BASE = {
         "locked_rotor_current": "6.2 pu", "locked_rotor_torque": "0.9 pu", "breakdown_torque": "2.3 pu",
         "safe_stall_time_cold": "20 s", "safe_stall_time_hot": "14 s", "rotor_inertia": "12 kg*m^2",
     },
-    "load": {"inertia": "5 kg*m^2", "torque_profile": "quadratic", "torque_at_rated_speed": "0.9 pu",
+    "load": {"inertia": "20 kg*m^2", "torque_profile": "quadratic", "torque_at_rated_speed": "0.9 pu",
              "breakaway_torque": "0.1 pu"},
     "supply": {"nominal_voltage": "4.16 kV", "fault_level": "250 MVA", "minimum_fault_level": "150 MVA",
                "x_over_r": 15, "minimum_starting_voltage": "0.85 pu"},

@@ -1,5 +1,5 @@
-"""Motor starting: acceleration by integration, the maker's curve, the double-cage model, starting voltage
-(METHODS.md §3.3, 3.4, 3.6)."""
+"""Motor starting: acceleration by integration, the maker's curve, the model curves (the double-cage equivalent
+circuit, and its sibling of two Kloss cages), starting voltage (METHODS.md §3.3, 3.4, 3.6)."""
 
 from __future__ import annotations
 
@@ -12,8 +12,8 @@ from machines.standards.double_cage import (
     breakdown_slip, fit_two_cage, kloss_torque, outer_slip_for_pull_up, pull_up_torque,
 )
 from machines.starting import (
-    LB_FT2, acceleration_time_wk2, acceleration_times, first_crossing, load_torque, maker_curve, model_curve,
-    motor_current, speed_after_dip, starting_voltage, study_start,
+    CIRCUIT_SOURCE, LB_FT2, acceleration_time_wk2, acceleration_times, first_crossing, load_torque, maker_curve,
+    model_curve, motor_current, speed_after_dip, starting_voltage, study_start,
 )
 
 # METHODS.md §3.4 worked case: 1000 kW, 4-pole 60 Hz, rated speed 0.99 pu, J = 200 kg·m², maker's torque table
@@ -109,7 +109,8 @@ def test_kloss_rated_point_and_breakdown():
     assert float(kloss_torque(sb, 2.2, sb)) == pytest.approx(2.2, rel=1e-12)
 
 
-# ---------------------------------------------------------------------------------------------------- double cage
+# ---------------------------------------------------------------------------------------------------- two Kloss cages
+# the sibling model (machines.standards.double_cage), used where the equivalent circuit cannot be fitted
 
 
 @pytest.mark.parametrize("s_r, t_lr, t_b, pull_up", [
@@ -137,16 +138,32 @@ def test_double_cage_equals_the_circuit_without_stator_impedance():
     assert np.allclose(circuit, kloss, rtol=1e-12)
 
 
-def test_pull_up_range_of_the_family():
-    # METHODS.md §3.6: the deeper the dip, the lower the torque between standstill and breakdown: slower starts
-    times = []
-    for pu in (0.68, 0.72, 0.76, 0.8):
-        c = model_curve(0.8, 2.2, 0.0067, 6.2, 0.89, pu)
+def test_pull_up_range_of_the_circuit():
+    # METHODS.md §3.6: the deeper the dip the circuit is fitted to, the lower its pull-up torque and the slower the
+    # start (the chiller's data sheet: s_r 12/1800, cos φ 0.89, η 0.958, I_LR 6.2, T_LR 0.8, T_b 2.2)
+    times, pull_ups = [], []
+    for pu in (0.68, 0.72, 0.76, None):
+        c = model_curve(0.8, 2.2, 12 / 1800, 6.2, 0.89, 0.958, pu)
+        assert c.source == CIRCUIT_SOURCE and c.target == pu and not c.fallback
         s = study_start(voltage=1.0, curve=c, rated_current=186.0, inertia=101.4, synchronous_speed=WS,
-                        rated_torque=5974.0, rated_slip=0.0067, load_profile="quadratic", load_torque_rated=0.95,
+                        rated_torque=5974.0, rated_slip=12 / 1800, load_profile="quadratic", load_torque_rated=0.95,
                         load_breakaway=0.08)
         times.append(s.acceleration_time)
-    assert times == sorted(times, reverse=True)
+        pull_ups.append(c.pull_up)
+    assert times == sorted(times, reverse=True) and pull_ups == sorted(pull_ups)
+    assert pull_ups[-1] == pytest.approx(0.8, abs=1e-3)  # the data sheet alone: no dip below T_LR
+
+
+def test_circuit_curve_uses_its_own_current():
+    # METHODS.md §3.6: with the circuit the current–speed curve is the circuit's own |I1|: I_LR at standstill, 1 pu
+    # at rated slip and, near synchronous speed (the rotor nearly open), the magnetising current 1/|R1 + j(X1 + Xm)|
+    from machines.standards.equivalent_circuit import fit_double_cage
+    c = model_curve(0.8, 2.2, 12 / 1800, 6.2, 0.89, 0.958)
+    fit = fit_double_cage(12 / 1800, 0.89, 0.958, 6.2, 0.8, 2.2)
+    assert float(c.current(0.0)) == pytest.approx(6.2, rel=1e-6)
+    assert float(c.current(1 - 12 / 1800)) == pytest.approx(1.0, rel=1e-3)
+    assert c.speeds[-1] > 0.9998 and float(c.torques[-1]) < 0.02
+    assert float(c.currents[-1]) == pytest.approx(1 / abs(fit.r1 + 1j * (fit.x1 + fit.xm)), rel=0.01)
 
 
 def test_maker_curve_past_its_last_point():
@@ -194,10 +211,10 @@ COMMON = dict(rated_current=100.0, inertia=100.0, synchronous_speed=188.5, rated
 
 def test_start_slower_at_lower_voltage_and_current_scales():
     # torque ∝ V², current ∝ V (METHODS.md §3.3)
-    curve = model_curve(0.8, 2.2, 0.01, 6.0, 0.88, 0.8)
+    curve = model_curve(0.8, 2.2, 0.01, 6.0, 0.88, 0.95)
     hi, lo = study_start(voltage=1.0, curve=curve, **COMMON), study_start(voltage=0.9, curve=curve, **COMMON)
     assert hi.accelerates and lo.accelerates and lo.acceleration_time > hi.acceleration_time
-    assert lo.currents[0] == pytest.approx(0.9 * 600.0) and hi.currents[0] == pytest.approx(600.0)
+    assert lo.currents[0] == pytest.approx(0.9 * 600.0, rel=1e-6) and hi.currents[0] == pytest.approx(600.0, rel=1e-6)
     assert lo.currents[-1] < 0.5 * lo.currents[0]
     assert np.all(np.diff(lo.times) > 0)
     again = study_start(voltage=1.0, curve=curve, initial_speed=0.7, **COMMON)
@@ -206,7 +223,7 @@ def test_start_slower_at_lower_voltage_and_current_scales():
 
 def test_does_not_accelerate():
     # METHODS.md §3.3: failure to accelerate when T_m·V² ≤ T_L below the end speed (here at standstill already)
-    curve = model_curve(0.8, 2.2, 0.01, 6.0, 0.88, 0.8)
+    curve = model_curve(0.8, 2.2, 0.01, 6.0, 0.88, 0.95)
     s = study_start(voltage=0.6, curve=curve, **{**COMMON, "load_profile": "constant", "load_torque_rated": 1.0})
     assert not s.accelerates and math.isinf(s.acceleration_time) and s.stall_speed == 0.0
     assert s.time_above(100.0) == math.inf

@@ -686,7 +686,7 @@ QUESTIONS: tuple[Question, ...] = (
     Question("machine.speed_curve", "Torque- and current-speed curve at rated voltage", "Speed curve", "nameplate",
              when=both(M, motor_curves),
              help="one line, pu: speed: 0 0.2 0.4 …; torque: 0.8 0.76 …; current: 6.2 6.1 … (speeds rising from 0)",
-             blank=constant("not given: a double-cage curve is fitted to the data sheet's torques")),
+             blank=constant("not given: a double-cage equivalent circuit is fitted to the data sheet")),
     Question("machine.thermal_limit", "Does the data sheet give IEEE 620 thermal-limit curves?", "Thermal-limit "
              "curves", "nameplate", when=both(M, motor_curves),
              row_text=(("curve", "curve {n}: running, accelerating or locked-rotor"),

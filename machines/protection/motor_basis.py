@@ -10,10 +10,13 @@ The starting voltage (METHODS.md §3.3): the file's ``supply.minimum_starting_vo
 than 0.85 pu (large motors are specified to start at 80–85 % voltage; common practice) or the lower voltage the
 minimum fault level gives with the bus at ``supply.voltage_before_start`` before the start.
 
-The torque curve: the maker's (``machine.speed_curve``) when given; else the double-cage curve fitted to the data
-sheet (:mod:`machines.standards.double_cage`) over a range of pull-up torque — the maker's pull-up torque when
-given, else 0.85–1.0 × the locked-rotor torque (common practice) — and the study is set and checked against the
-long end of the acceleration range.
+The torque curve: the maker's (``machine.speed_curve``) when given; else the double-cage equivalent circuit fitted
+to the data sheet (:mod:`machines.standards.equivalent_circuit`, METHODS.md §3.6). With the maker's pull-up torque
+the circuit is fitted to it as well; without it the acceleration time is a range: the short end from the circuit
+fitted to the data sheet alone (its own pull-up torque), the long end from the circuit fitted also to a pull-up
+torque of 0.85 × the locked-rotor torque (common practice), and the study is set and checked against the long end.
+Where the circuit cannot be fitted, the two-cage Kloss curve (:mod:`machines.standards.double_cage`) stands in
+and a warning says so.
 """
 
 from __future__ import annotations
@@ -33,6 +36,7 @@ from machines.starting import (
     LB_FT2, MotorCurve, StartStudy, breakdown_slip, load_torque, maker_curve, model_curve, starting_voltage,
     study_start,
 )
+from machines.standards.equivalent_circuit import CONVERGED
 
 #: the start is studied at no more than this voltage when the file gives no minimum starting voltage [pu]
 DEFAULT_MINIMUM_STARTING_VOLTAGE = 0.85  # common practice, no published source
@@ -65,7 +69,7 @@ class MotorBasis:
     source_basis: str
     curve: MotorCurve  #: the torque curve at the long end of the range
     curve_short: MotorCurve  #: the torque curve at the short end (the same curve when there is no range)
-    pull_up_range: tuple[float, float] | None  #: (long end, short end) pull-up torque [pu]; None: maker's curve
+    pull_up_range: tuple[float, float] | None  #: (long end, short end): the curves' pull-up torques [pu]; None: maker's
     start_min: StartStudy  #: start at the minimum starting voltage, long end
     start_min_short: StartStudy  #: the same at the short end of the range
     start_rated: StartStudy  #: start at rated voltage, long end
@@ -76,6 +80,7 @@ class MotorBasis:
     safe_stall_hot: float = 0.0  #: maker's hot safe stall time at rated voltage [s]
     safe_stall_cold: float = 0.0
     promised: bool = False  #: the fitted curve stalls but the data sheet promises the start: curve raised to a margin
+    pull_up_datum: float | None = None  #: the pull-up torque the long end rests on: the maker's, else assumed [pu]
 
     def lr_pu(self) -> float:
         return self.lr_current / self.flc
@@ -181,17 +186,23 @@ def _minimum_voltage(case: MachineCase, lr: float, z_s: float | None, how: str,
 
 
 def _curves(case: MachineCase, flc: float, lr: float, slip: float) -> tuple[MotorCurve, MotorCurve,
-                                                                           tuple[float, float] | None]:
+                                                                           tuple[float, float] | None, float | None]:
+    """(long end, short end, their pull-up torques, the pull-up torque the long end rests on)."""
     m = case.machine
     if m.speed_curve is not None:
         c = m.speed_curve
         curve = maker_curve(c.speed, c.torque, c.current, lr / flc, slip, m.power_factor)
-        return curve, curve, None
-    t_lr = m.locked_rotor_torque
-    lo, hi = (m.pull_up_torque, m.pull_up_torque) if m.pull_up_torque is not None else (PULL_UP_LOW * t_lr, t_lr)
-    long = model_curve(t_lr, m.breakdown_torque, slip, lr / flc, m.power_factor, lo)
-    short = long if hi == lo else model_curve(t_lr, m.breakdown_torque, slip, lr / flc, m.power_factor, hi)
-    return long, short, (lo, hi)
+        return curve, curve, None, None
+    data = (m.locked_rotor_torque, m.breakdown_torque, slip, lr / flc, m.power_factor, m.efficiency)
+    if m.pull_up_torque is not None:
+        long = model_curve(*data, m.pull_up_torque)
+        return long, long, (long.pull_up, long.pull_up), m.pull_up_torque
+    short = model_curve(*data)
+    assumed = PULL_UP_LOW * m.locked_rotor_torque
+    # the data sheet alone may already give a curve that dips to the assumed pull-up torque or below: then it is the
+    # long end as well
+    long = short if short.pull_up <= assumed * (1.0 + 1e-3) else model_curve(*data, assumed)
+    return long, short, (long.pull_up, short.pull_up), assumed
 
 
 def motor_basis(ctx: StudyContext) -> MotorBasis:
@@ -212,14 +223,14 @@ def motor_basis(ctx: StudyContext) -> MotorBasis:
                                     "cannot be computed; the study assumes a stiff bus and the 50P sensitivity "
                                     "cannot be checked."))
     v_calc, v_min, v_src = _minimum_voltage(case, lr, z_s, how, checks)
-    curve, curve_short, pu_range = _curves(case, flc, lr, slip)
+    curve, curve_short, pu_range, pu_datum = _curves(case, flc, lr, slip)
     common = dict(rated_current=flc, inertia=j, synchronous_speed=ws, rated_torque=torque, rated_slip=slip,
                   load_profile=load.torque_profile, load_torque_rated=load.torque_at_rated_speed,
                   load_breakaway=load.breakaway_torque)
     start_min = study_start(voltage=v_min, curve=curve, **common)
     start_short = start_min if curve_short is curve else study_start(voltage=v_min, curve=curve_short, **common)
     promised = False
-    if not start_min.accelerates and pu_range is not None and _promised(case, curve, pu_range, slip, v_min):
+    if not start_min.accelerates and pu_datum is not None and _promised(case, curve, pu_datum, slip, v_min):
         promised = True
         curve = _with_margin(curve, case, slip, v_min)
         start_min = study_start(voltage=v_min, curve=curve, **common)
@@ -232,7 +243,7 @@ def motor_basis(ctx: StudyContext) -> MotorBasis:
     basis = MotorBasis(flc, lr, lr_low, lr_high, from_code, open_upper, poles, ws, torque, slip,
                        m.rated_output / HP, j, load.inertia / LB_FT2, v_calc, v_min, how, curve, curve_short,
                        pu_range, start_min, start_short, start_rated, fmax, fmin, case.supply.x_over_r, limits,
-                       m.safe_stall_time_hot, m.safe_stall_time_cold, promised)
+                       m.safe_stall_time_hot, m.safe_stall_time_cold, promised, pu_datum)
     _record(ctx, basis, v_src)
     _start_checks(basis, case, checks)
     _heat_checks(basis, checks)
@@ -263,17 +274,21 @@ def _record(ctx: StudyContext, b: MotorBasis, v_min_source) -> None:
                                 label="Torque–speed curve", note="" if b.pull_up_range is None else
                                 "METHODS.md §3.6; the maker's curve (machine.speed_curve) would replace it")
     if b.pull_up_range is not None:
-        lo, hi = b.pull_up_range
         given = m.pull_up_torque is not None
         d["pull_up_torque"] = Setting(b.curve.pull_up, "pu", "maker-data" if given else "common-practice",
-                                      label="Pull-up torque studied (long end)",
-                                      note="the maker's" if given and abs(b.curve.pull_up - lo) < 0.005 else
-                                      f"assumed range {lo:.2f}–{hi:.2f} pu ({PULL_UP_LOW:.2f}–1.00 × T_LR, common "
-                                      "practice)" if not given else
-                                      f"the nearest the double-cage curve reaches to the maker's {lo:.2f} pu")
+                                      label="Pull-up torque studied (long end)", note=_pull_up_note(b, given))
+        if not b.curve.fallback:
+            short = b.curve_short
+            d["torque_curve_departure"] = Setting(
+                b.curve.departure, "pu", "derived", label="Largest departure of the torque curve from the data sheet",
+                note=f"{b.curve.departure_from}, long end" + ("" if short is b.curve else
+                                                              f"; short end {short.departure:.1%}"
+                                                              + (f" ({short.departure_from})"
+                                                                 if short.departure >= 0.0005 else "")))
     acc = b.start_min.acceleration_time
     short = b.start_min_short
-    span = (f"range {short.acceleration_time:.1f}–{acc:.1f} s over the pull-up torque"
+    span = (f"range {short.acceleration_time:.1f}–{acc:.1f} s over the pull-up torque "
+            f"{b.curve_short.pull_up:.2f}–{b.curve.pull_up:.2f} pu"
             if short is not b.start_min and short.accelerates and b.bounded else "")
     d["acceleration_time"] = Setting(acc if b.bounded else None, "s", "derived",
                                      label="Acceleration time at minimum starting voltage (long end)",
@@ -285,12 +300,32 @@ def _record(ctx: StudyContext, b: MotorBasis, v_min_source) -> None:
                                            note="" if b.start_rated.accelerates else "does not accelerate")
     d["total_inertia"] = Setting(b.total_inertia, "kg*m^2", "derived", label="Motor and load inertia")
     d["rated_torque"] = Setting(b.rated_torque, "N*m", "derived", label="Rated torque")
-    d["breakdown_slip"] = Setting(breakdown_slip(b.rated_slip, max(m.breakdown_torque, 1.0 + 1e-6)), "pu", "derived",
-                                  label="Breakdown slip (Kloss)")
+    if b.pull_up_range is None:
+        d["breakdown_slip"] = Setting(breakdown_slip(b.rated_slip, max(m.breakdown_torque, 1.0 + 1e-6)), "pu",
+                                      "derived", label="Breakdown slip (Kloss)")
+    else:
+        d["breakdown_slip"] = Setting(1.0 - float(b.curve.speeds[int(b.curve.torques.argmax())]), "pu", "derived",
+                                      label="Breakdown slip", note="of the torque curve studied (long end)")
     if b.fault_max:
         d["fault_current_max"] = Setting(b.fault_max, "A", "derived", label="Maximum three-phase fault current")
     if b.fault_min:
         d["fault_current_min"] = Setting(b.fault_min, "A", "derived", label="Minimum three-phase fault current")
+
+
+def _pull_up_note(b: MotorBasis, given: bool) -> str:
+    """What the studied pull-up torque rests on: the maker's value or the assumption, and what the curve reaches."""
+    c, datum = b.curve, b.pull_up_datum
+    if c.fallback:
+        reach = f"the two-cage Kloss curve reaches {c.pull_up:.2f} pu"
+    elif c.target is None:
+        reach = f"the circuit fitted to the data sheet alone already dips to {c.pull_up:.2f} pu"
+    else:
+        reach = (f"the circuit fitted to it reaches {c.pull_up:.2f} pu, departing from the data sheet by up to "
+                 f"{c.departure:.1%} ({c.departure_from})")
+    if given:
+        return "the maker's" if abs(c.pull_up - datum) < 0.005 else f"the maker's {datum:.2f} pu; {reach}"
+    return (f"assumed {datum:.2f} pu ({PULL_UP_LOW:.2f} × T_LR, common practice); {reach}; the short end, fitted to "
+            f"the data sheet alone, has {b.curve_short.pull_up:.2f} pu")
 
 
 def _load(case: MachineCase, speed, slip: float):
@@ -298,15 +333,16 @@ def _load(case: MachineCase, speed, slip: float):
     return load_torque(speed, load.torque_profile, load.torque_at_rated_speed, load.breakaway_torque, 1.0 - slip)
 
 
-def _promised(case: MachineCase, curve: MotorCurve, pu_range: tuple[float, float], slip: float, v: float) -> bool:
+def _promised(case: MachineCase, curve: MotorCurve, pull_up: float, slip: float, v: float) -> bool:
     """Whether the data sheet's own torques, at the voltage ``v``, exceed the load torque at standstill, at the
-    fitted curve's pull-up speed and at breakdown speed: the start the data sheet promises."""
+    fitted curve's pull-up speed (the data sheet's pull-up torque ``pull_up``, the maker's or assumed) and at the
+    curve's breakdown speed: the start the data sheet promises."""
     m = case.machine
     v2 = v * v
-    n_b = 1.0 - breakdown_slip(slip, max(m.breakdown_torque, 1.0 + 1e-6))
+    n_b = float(curve.speeds[int(curve.torques.argmax())])
     below = curve.speeds <= n_b
     n_pu = float(curve.speeds[below][int(curve.torques[below].argmin())])
-    return bool(m.locked_rotor_torque * v2 > _load(case, 0.0, slip) and pu_range[0] * v2 > _load(case, n_pu, slip)
+    return bool(m.locked_rotor_torque * v2 > _load(case, 0.0, slip) and pull_up * v2 > _load(case, n_pu, slip)
                 and m.breakdown_torque * v2 > _load(case, n_b, slip))
 
 
@@ -318,10 +354,30 @@ def _with_margin(curve: MotorCurve, case: MachineCase, slip: float, v: float) ->
     torques = curve.torques.copy()
     below = curve.speeds <= n_b
     torques[below] = np.maximum(curve.torques[below], floor[below])
-    return MotorCurve(curve.speeds, torques, curve.currents,
-                      curve.source + f", raised where it stalls to the load torque + {PURCHASE_MARGIN:.2f} pu at "
-                                     f"{v:.2f} pu voltage (the margin the data sheet's start promise implies)",
-                      curve.pull_up)
+    return curve.with_torques(torques, curve.source + f", raised where it stalls to the load torque + "
+                                                      f"{PURCHASE_MARGIN:.2f} pu at {v:.2f} pu voltage (the margin the "
+                                                      "data sheet's start promise implies)")
+
+
+def _model_words(b: MotorBasis) -> str:
+    """The model curve, as a finding names it."""
+    if b.curve.fallback:
+        return "the two-cage Kloss curve fitted to the data sheet's torques"
+    return "the double-cage equivalent circuit fitted to the data sheet"
+
+
+def _range_words(b: MotorBasis, m) -> str:
+    """What the long end of the range rests on: the pull-up torque it was fitted to and how far the curve departs
+    from the data sheet."""
+    c = b.curve
+    what = (f"the maker's pull-up torque {b.pull_up_datum:.2f} pu" if m.pull_up_torque is not None else
+            f"a pull-up torque of {b.pull_up_datum:.2f} pu ({PULL_UP_LOW:.2f} × T_LR, assumed: common practice)")
+    if c.fallback:
+        return f"the long end fitted also to {what}"
+    if c.target is None:
+        return f"the circuit fitted to the data sheet alone already dips to {c.pull_up:.2f} pu, below {what}"
+    return (f"the long end, fitted also to {what}, reaches {c.pull_up:.2f} pu and departs from the data sheet by up "
+            f"to {c.departure:.1%} ({c.departure_from})")
 
 
 def _start_checks(b: MotorBasis, case: MachineCase, checks: list[Check]) -> None:
@@ -331,9 +387,23 @@ def _start_checks(b: MotorBasis, case: MachineCase, checks: list[Check]) -> None
     maker = b.pull_up_range is None
     settle = "the maker's torque–speed curve (machine.speed_curve)" + ("" if m.pull_up_torque is not None else
                                                                       " or pull-up torque (machine.pull_up_torque)")
+    fallback = b.curve.fallback or b.curve_short.fallback
+    if fallback:
+        checks.append(Check("warn", f"The torque curve: {fallback}, so the study uses the two-cage Kloss curve fitted "
+                                    "to the data sheet's torques and rated slip instead (METHODS.md §3.6). Its pull-up "
+                                    "dip lies at high speed, where the load torque is large, so it is likely to "
+                                    f"overstate the acceleration time; {settle} would settle it."))
+    c = b.curve
+    if m.pull_up_torque is not None and not maker and c.pull_up > m.pull_up_torque * (1.0 + CONVERGED):
+        gave = f", already giving up {c.departure:.1%} of the data sheet ({c.departure_from})" if not c.fallback else ""
+        checks.append(Check("warn", f"The maker's pull-up torque is {m.pull_up_torque:.2f} pu, but "
+                                    f"{_model_words(b)}, fitted to it as well, reaches only {c.pull_up:.2f} pu{gave} "
+                                    "(METHODS.md §3.6): between standstill and breakdown the studied torque may be "
+                                    "higher than the motor's, and the start shorter. The maker's torque–speed curve "
+                                    "(machine.speed_curve) would settle it."))
     if s.accelerates and b.promised:
-        checks.append(Check("warn", f"At the minimum starting voltage {v:.3f} pu the double-cage curve fitted to the "
-                                    f"data sheet (pull-up torque {b.curve.pull_up:.2f} pu) would stall, although the "
+        checks.append(Check("warn", f"At the minimum starting voltage {v:.3f} pu {_model_words(b)} (pull-up torque "
+                                    f"{b.curve.pull_up:.2f} pu) would stall, although the "
                                     "data sheet's own torques exceed the load torque at standstill, pull-up and "
                                     "breakdown speed. The study takes the motor to start as a motor bought for this "
                                     f"duty would: with its torque at least {PURCHASE_MARGIN:.2f} pu above the load's "
@@ -343,11 +413,15 @@ def _start_checks(b: MotorBasis, case: MachineCase, checks: list[Check]) -> None
         return
     if s.accelerates:
         short = b.start_min_short
+        free = b.curve_short
         rests = "" if maker else (
-            f" The curve between the data sheet's points is the double-cage model (METHODS.md §3.6)"
-            + (f"; over the pull-up torque {b.pull_up_range[0]:.2f}–{b.pull_up_range[1]:.2f} pu the start takes "
-               f"{short.acceleration_time:.1f}–{s.acceleration_time:.1f} s and the study is set on the long end"
-               if short is not s and short.accelerates else "")
+            f" The curve between the data sheet's points is {_model_words(b)} (METHODS.md §3.6)"
+            + (f", which departs from it by up to {free.departure:.1%} ({free.departure_from})"
+               if not free.fallback and free.departure > CONVERGED else "")
+            + (f"; over the pull-up torque {b.curve.pull_up:.2f}–{free.pull_up:.2f} pu ({_range_words(b, m)}) the "
+               f"start takes {short.acceleration_time:.1f}–{s.acceleration_time:.1f} s and the study is set on the "
+               "long end" if short is not s and short.accelerates else
+               f"; {_range_words(b, m)}" if m.pull_up_torque is not None or b.curve is b.curve_short else "")
             + f": the result rests on that assumption, which {settle} would settle.")
         checks.append(Check("ok", f"The motor accelerates at the minimum starting voltage {v:.3f} pu in "
                                   f"{s.acceleration_time:.1f} s (hot safe stall time {m.safe_stall_time_hot:g} s)."

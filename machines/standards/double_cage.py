@@ -18,6 +18,10 @@ and the locked-rotor torque T_LR (at s = 1) leave one free parameter, the starti
 sets the depth of the pull-up dip. :func:`fit_two_cage` fits the curve for a given s_o, :func:`pull_up_torque`
 finds the dip, and :func:`outer_slip_for_pull_up` picks s_o for a given pull-up torque. Torques are pu of rated
 torque, slips pu of synchronous speed.
+
+The study's model curve is the full double-cage equivalent circuit (:mod:`machines.standards.equivalent_circuit`);
+this curve stands in where that circuit cannot be fitted to the data sheet (METHODS.md §3.6). Its dip lies at high
+speed, where a pump's or fan's load torque is large, so it overstates the acceleration time.
 """
 
 from __future__ import annotations
