@@ -304,7 +304,10 @@ def model_curve(locked_rotor_torque: float, breakdown_torque: float, rated_slip:
     fit = free if pull_up is None else fit_double_cage(*data, pull_up)
     torques = fit.torque(slips)
     torques[-1] = 0.0 if n[-1] >= 1.0 else torques[-1]
-    currents = fit.current(slips)
+    # the long end gives up a few per cent of the data sheet (mostly T_LR and I_LR) to reach its pull-up target; its
+    # current is taken as the larger of its own and the data-sheet fit's at each speed, so the heat of the longer
+    # start is never understated
+    currents = fit.current(slips) if fit is free else np.maximum(fit.current(slips), free.current(slips))
     _frozen(torques, currents)
     return MotorCurve(n, torques, currents, CIRCUIT_SOURCE, fit.pull_up, pull_up, fit.worst,
                       DATUM_NAMES[fit.worst_equation])

@@ -24,6 +24,8 @@ logarithms of the parameters (so they stay positive); two weak conditions fix wh
 and outer-cage leakages alike, a small common leakage). An optional pull-up torque (the least torque from
 standstill to breakdown speed) is a further equation. Torques are returned in pu of rated torque and currents in
 pu of full-load current.
+
+Methods: machines/METHODS.md §3.6.
 """
 
 from __future__ import annotations
