@@ -186,7 +186,7 @@ def test_the_maker_curve_decides_the_start():
 def test_no_pull_up_gives_a_range_and_the_long_end():
     rec = study()
     note = rec.derived["acceleration_time"].note
-    assert "range" in note and rec.derived["pull_up_torque"].source == "common-practice"
+    assert "the long end, used" in note and rec.derived["pull_up_torque"].source == "common-practice"
     (minimum,) = [p for p in rec.start_profiles if p["label"] == "minimum"]
     short, long = minimum["acceleration_range"]
     assert short < long == pytest.approx(rec.derived["acceleration_time"].value, rel=1e-6)

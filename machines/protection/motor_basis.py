@@ -287,8 +287,8 @@ def _record(ctx: StudyContext, b: MotorBasis, v_min_source) -> None:
                                                                  if short.departure >= 0.0005 else "")))
     acc = b.start_min.acceleration_time
     short = b.start_min_short
-    span = (f"range {short.acceleration_time:.1f}–{acc:.1f} s over the pull-up torque "
-            f"{b.curve_short.pull_up:.2f}–{b.curve.pull_up:.2f} pu"
+    span = (f"{short.acceleration_time:.1f} s at a pull-up torque of {b.curve_short.pull_up:.2f} pu to {acc:.1f} s "
+            f"at {b.curve.pull_up:.2f} pu (the long end, used)"
             if short is not b.start_min and short.accelerates and b.bounded else "")
     d["acceleration_time"] = Setting(acc if b.bounded else None, "s", "derived",
                                      label="Acceleration time at minimum starting voltage (long end)",
@@ -418,9 +418,9 @@ def _start_checks(b: MotorBasis, case: MachineCase, checks: list[Check]) -> None
             f" The curve between the data sheet's points is {_model_words(b)} (METHODS.md §3.6)"
             + (f", which departs from it by up to {free.departure:.1%} ({free.departure_from})"
                if not free.fallback and free.departure > CONVERGED else "")
-            + (f"; over the pull-up torque {b.curve.pull_up:.2f}–{free.pull_up:.2f} pu ({_range_words(b, m)}) the "
-               f"start takes {short.acceleration_time:.1f}–{s.acceleration_time:.1f} s and the study is set on the "
-               "long end" if short is not s and short.accelerates else
+            + (f"; over the pull-up torque ({_range_words(b, m)}) the start takes {short.acceleration_time:.1f} s "
+               f"at {free.pull_up:.2f} pu and {s.acceleration_time:.1f} s at {b.curve.pull_up:.2f} pu, and the study "
+               "is set on the long end" if short is not s and short.accelerates else
                f"; {_range_words(b, m)}" if m.pull_up_torque is not None or b.curve is b.curve_short else "")
             + f": the result rests on that assumption, which {settle} would settle.")
         checks.append(Check("ok", f"The motor accelerates at the minimum starting voltage {v:.3f} pu in "
