@@ -12,8 +12,10 @@ whose ``sheet.revision`` is higher than the one being written is never overwritt
 from __future__ import annotations
 
 import difflib
+import hashlib
 import os
 import re
+import stat
 import tempfile
 import tomllib
 import unicodedata
@@ -21,7 +23,7 @@ from dataclasses import fields
 from pathlib import Path
 from typing import Any
 
-from machines.errors import InputError, one_line
+from machines.errors import InputError, one_line, unsafe_character
 from machines.model import (
     FieldSpec, Grounding, InductionMotor, Instruments, MachineCase, MotorLoad, Ratio, RelaySteps, SheetInfo,
     StudyOptions, Supply, SynchronousGenerator, field_specs, motor_rated_current, validate_case,
@@ -30,6 +32,9 @@ from machines.units import KINDS, convert, parse_quantity
 
 FORMAT = "relaywright.machine/1"
 MAX_FILE_BYTES = 1_000_000
+MAX_TEXT = 500  #: characters of a text field
+MAX_DIGITS = 15  #: a whole number in a file longer than this is no quantity anyone measured
+MAX_STEM_BYTES = 150  #: a file name made from a tag, extension left out (file systems allow 255 bytes)
 MACHINE_KINDS = {"induction-motor": InductionMotor, "synchronous-generator": SynchronousGenerator}
 SECTIONS = {"sheet": SheetInfo, "study": StudyOptions, "machine": None, "load": MotorLoad, "supply": Supply,
             "grounding": Grounding, "instruments": Instruments, "relay": RelaySteps}
@@ -86,11 +91,18 @@ def parse_value(spec: FieldSpec, raw: Any, key: str, *, rated_current: float | N
     The wizard calls this too, so a refused answer gets the same message as a refused file value.
     """
     kind = spec.kind
+    if isinstance(raw, int) and not isinstance(raw, bool) and abs(raw) >= 10 ** MAX_DIGITS:
+        raise InputError(key, f"expected a number of at most {MAX_DIGITS} digits, got {one_line(raw)}")
+    bad = _unsafe_text(raw)
+    if bad is not None:
+        # control and bidirectional formatting characters: in no value, of any kind (they would reach terminals)
+        raise InputError(key, f"expected plain text, got {unsafe_character(bad)} at position "
+                              f"{_first_unsafe(bad) + 1} of {one_line(bad)}")
     if kind == "text":
         if not isinstance(raw, str):
             raise InputError(key, f"expected text in quotes, got {one_line(raw)}")
-        if len(raw) > 500 or "\x00" in raw:
-            raise InputError(key, f"expected at most 500 characters of text, got {len(raw)}")
+        if len(raw) > MAX_TEXT:
+            raise InputError(key, f"expected at most {MAX_TEXT} characters of text, got {len(raw)}")
         return raw.strip()
     if kind == "choice":
         if not isinstance(raw, str) or raw not in spec.choices:
@@ -118,7 +130,7 @@ def parse_value(spec: FieldSpec, raw: Any, key: str, *, rated_current: float | N
     if kind == "ct_class":
         from machines.standards.ct_saturation import check_relaying_class
 
-        if not isinstance(raw, str) or len(raw) > 20:
+        if not isinstance(raw, str) or len(raw) > 20 or not raw.strip():
             raise InputError(key, f"expected a CT class such as 'C200' or '5P20', got {one_line(raw)}")
         return check_relaying_class(raw, key)
     if kind == "current_or_pu":
@@ -154,6 +166,22 @@ def parse_value(spec: FieldSpec, raw: Any, key: str, *, rated_current: float | N
         _check_range(spec, value, key, k.si_unit)
         return value
     raise ValueError(f"{key}: field kind {kind!r} is not readable")  # a programming error, not bad input
+
+
+def _unsafe_text(raw: Any, depth: int = 0) -> str | None:
+    """The first string in ``raw`` (a value, or a list or table of them) holding a character a terminal acts on."""
+    if isinstance(raw, str):
+        return raw if unsafe_character(raw) is not None else None
+    if depth < 4 and isinstance(raw, (list, tuple, dict)):
+        for item in (raw.values() if isinstance(raw, dict) else raw):
+            found = _unsafe_text(item, depth + 1)
+            if found is not None:
+                return found
+    return None
+
+
+def _first_unsafe(text: str) -> int:
+    return next(i for i, ch in enumerate(text) if unsafe_character(ch) is not None)
 
 
 MAX_POINTS = 60  #: entries of a curve a file may give
@@ -329,6 +357,10 @@ def case_from_dict(data: Any) -> tuple[MachineCase, list[str]]:
                                                "the setting name)")
         if not isinstance(v, (str, int, float, bool)):
             raise InputError(f"overrides.{k}", f"expected a value such as \"180 A\", got {one_line(v)}")
+        if isinstance(v, str) and unsafe_character(v) is not None:
+            raise InputError(f"overrides.{k}", f"expected plain text, got {unsafe_character(v)} in {one_line(v)}")
+        if isinstance(v, int) and not isinstance(v, bool) and abs(v) >= 10 ** MAX_DIGITS:
+            raise InputError(f"overrides.{k}", f"expected a number of at most {MAX_DIGITS} digits, got {one_line(v)}")
         over.append((k, v if isinstance(v, str) else str(v).lower() if isinstance(v, bool) else str(v)))
     supply_given = "supply" in data
     supply_table = data["supply"] if supply_given else {"nominal_voltage": f"{machine.rated_voltage!r} V"}
@@ -343,22 +375,46 @@ def case_from_dict(data: Any) -> tuple[MachineCase, list[str]]:
     return case, validate_case(case)
 
 
+_NOT_REGULAR = ((stat.S_ISFIFO, "a named pipe (FIFO)"), (stat.S_ISCHR, "a device"), (stat.S_ISBLK, "a device"),
+                (stat.S_ISSOCK, "a socket"))
+
+
+def _file_kind(mode: int) -> str:
+    return next((name for test, name in _NOT_REGULAR if test(mode)), "not a regular file")
+
+
 def read_bytes(path: str | Path, what: str = "a machine file (.toml)", limit: int | None = MAX_FILE_BYTES) -> bytes:
-    """A file's bytes, or InputError naming the path: missing, a folder, unreadable or larger than ``limit``."""
+    """A regular file's bytes, or InputError naming the path: missing, a folder, a pipe or a device (never read:
+    they may never end), unreadable, or larger than ``limit`` (checked before reading, and again while reading)."""
     p = Path(path)
     try:
-        if p.is_dir():
+        st = os.stat(p)  # through a symbolic link: what is read is its target
+        if stat.S_ISDIR(st.st_mode):
             raise InputError(str(path), f"expected {what}, got a folder")
-        size = p.stat().st_size
-        if limit is not None and size > limit:
-            raise InputError(str(path), f"expected {what} under {limit // 1_000_000} MB, got {size} bytes")
-        return p.read_bytes()
+        if not stat.S_ISREG(st.st_mode):
+            raise InputError(str(path), f"expected {what}, got {_file_kind(st.st_mode)}; only regular files are "
+                                        "read")
+        if limit is not None and st.st_size > limit:
+            raise InputError(str(path), f"expected {what} of at most {_size(limit)}, got {st.st_size} bytes")
+        fd = os.open(p, os.O_RDONLY | getattr(os, "O_NONBLOCK", 0) | getattr(os, "O_NOCTTY", 0))
+        with os.fdopen(fd, "rb") as fh:
+            if not stat.S_ISREG(os.fstat(fh.fileno()).st_mode):  # replaced between the two looks
+                raise InputError(str(path), f"expected {what}, got a file that is not a regular file")
+            data = fh.read(-1 if limit is None else limit + 1)
     except FileNotFoundError:
-        raise InputError(str(path), "no such file") from None
+        raise InputError(str(path), "no such file" + (" (a symbolic link to nothing)" if p.is_symlink() else "")) \
+            from None
     except PermissionError:
         raise InputError(str(path), "the file cannot be read (permission denied)") from None
     except OSError as e:
         raise InputError(str(path), f"the file cannot be read ({e.strerror or e})") from None
+    if limit is not None and len(data) > limit:
+        raise InputError(str(path), f"expected {what} of at most {_size(limit)}, got a file that grew beyond it")
+    return data
+
+
+def _size(limit: int) -> str:
+    return f"{limit / 1e6:g} MB" if limit >= 1_000_000 else f"{limit / 1e3:g} kB"
 
 
 def read_text(path: str | Path) -> str:
@@ -372,12 +428,64 @@ def read_text(path: str | Path) -> str:
 
 
 def parse_toml(text: str, name: str = "") -> dict:
+    """The TOML document as plain data, or InputError naming ``name``, the line and, for a key given twice, the
+    key."""
     try:
         return tomllib.loads(text)
     except tomllib.TOMLDecodeError as e:
-        raise InputError(name, f"not valid TOML: {str(e).splitlines()[0]}") from None
+        first = str(e).splitlines()[0]
+        if first.startswith(("Cannot overwrite a value", "Cannot declare")):
+            raise InputError(name, f"not valid TOML: {duplicate_key(text) or first}") from None
+        raise InputError(name, f"not valid TOML: {first}") from None
     except RecursionError:
         raise InputError(name, "not valid TOML: nested too deeply") from None
+    except ValueError:  # Python refuses to read a whole number of more than 4300 digits
+        raise InputError(name, "not valid TOML: a number far too long to read") from None
+
+
+_HEADER = re.compile(r"\s*\[\[?\s*([^\]]*?)\s*\]\]?\s*(?:#.*)?$")
+
+
+def duplicate_key(text: str) -> str:
+    """Which key a TOML document gives twice, as ``the key 'machine.rated_current' is given twice (line 14)``.
+
+    tomllib reports only where it noticed (sometimes "at end of document"); the first line whose prefix of the
+    document gives the same complaint is the one that repeats a key (parsing is sequential, so that is monotone and
+    found by bisection).
+
+    >>> duplicate_key('[machine]\\nkind = "x"\\nrated_current = "1 A"\\nrated_current = "2 A"\\n')
+    "the key 'machine.rated_current' is given twice (line 4)"
+    >>> duplicate_key('[sheet]\\ntag = "a"\\n[sheet]\\n')
+    'the table [sheet] is given twice (line 3)'
+    """
+    lines = text.split("\n")
+
+    def repeats(n: int) -> bool:
+        try:
+            tomllib.loads("\n".join(lines[:n]))
+        except tomllib.TOMLDecodeError as e:
+            return str(e).startswith(("Cannot overwrite a value", "Cannot declare"))
+        except (RecursionError, ValueError):
+            return False
+        return False
+
+    lo, hi = 1, len(lines)
+    if not repeats(hi):
+        return ""
+    while lo < hi:
+        mid = (lo + hi) // 2
+        if repeats(mid):
+            hi = mid
+        else:
+            lo = mid + 1
+    line = lines[lo - 1]
+    header = _HEADER.match(line)
+    if header and "=" not in line.split("]")[0]:
+        return f"the table [{one_line(header.group(1), 80)[1:-1]}] is given twice (line {lo})"
+    table = next((m.group(1) for m in map(_HEADER.match, reversed(lines[:lo - 1])) if m), "")
+    key = line.split("=", 1)[0].strip()
+    full = f"{table}.{key}" if table else key
+    return f"the key {one_line(full, 80)} is given twice (line {lo})"
 
 
 def load_case(path: str | Path) -> tuple[MachineCase, list[str]]:
@@ -392,31 +500,54 @@ def load_case(path: str | Path) -> tuple[MachineCase, list[str]]:
 # ---------------------------------------------------------------------------------------------------- writing
 
 
-def safe_file_stem(text: str, fallback: str = "machine") -> str:
+def safe_file_stem(text: str, fallback: str = "machine", max_bytes: int = MAX_STEM_BYTES) -> str:
     """A file name made from a tag: letters, digits, ``-``, ``_`` and ``.`` only, no leading dot, no ``..``.
+
+    A name longer than ``max_bytes`` (UTF-8) is shortened and given a short digest of the whole text, and a text with
+    nothing usable becomes ``fallback`` and that digest, so two different texts do not end up with one name by being
+    cut or emptied.
 
     >>> safe_file_stem("CW-P-201"), safe_file_stem("../../etc/passwd"), safe_file_stem("M-101 <spare>/2")
     ('CW-P-201', 'etc_passwd', 'M-101_spare_2')
     >>> safe_file_stem("Насос-3"), safe_file_stem("..."), safe_file_stem("CON")
-    ('Насос-3', 'machine', 'CON_')
+    ('Насос-3', 'machine-ab5df625', 'CON_')
+    >>> len(safe_file_stem("P" * 300)), safe_file_stem("P" * 300)[-10:]
+    (150, 'P-1785d15a')
     """
     s = unicodedata.normalize("NFKC", str(text))
     s = "".join(ch if ch.isalnum() or ch in "-_." else "_" for ch in s)
     s = re.sub(r"\.{2,}", "_", s)
-    s = re.sub(r"_{2,}", "_", s).strip("._-")[:80].rstrip("._-")
+    s = re.sub(r"_{2,}", "_", s).strip("._-")
     if not s:
-        return fallback
+        return f"{fallback}-{_digest(text)}" if str(text) else fallback
     if s.split(".")[0].upper() in {"CON", "PRN", "AUX", "NUL", *(f"COM{i}" for i in range(10)),
                                    *(f"LPT{i}" for i in range(10))}:
         s += "_"
+    if len(s.encode("utf-8")) > max_bytes:
+        keep = s.encode("utf-8")[:max_bytes - 9].decode("utf-8", "ignore").rstrip("._-")
+        s = f"{keep}-{_digest(text)}"
     return s
+
+
+def sheet_stem(tag: str, revision: int, fallback: str = "sheet") -> str:
+    """``<tag>-rev<N>`` for a sheet or record: the tag part is shortened when it must be, never the revision.
+
+    >>> sheet_stem("CW-P-201", 2), sheet_stem("X" * 400, 12)[-16:]
+    ('CW-P-201-rev2', 'X-127682a2-rev12')
+    """
+    suffix = f"-rev{revision}"
+    return safe_file_stem(tag, fallback, MAX_STEM_BYTES - len(suffix)) + suffix
+
+
+def _digest(text: object) -> str:
+    return hashlib.sha256(str(text).encode("utf-8", "surrogatepass")).hexdigest()[:8]
 
 
 def file_revision(path: str | Path) -> int | None:
     """The ``sheet.revision`` of an existing file, or None when there is no readable file."""
     try:
-        data = tomllib.loads(Path(path).read_text("utf-8"))
-    except (OSError, UnicodeDecodeError, tomllib.TOMLDecodeError):
+        data = tomllib.loads(read_bytes(path).decode("utf-8-sig"))
+    except (InputError, UnicodeDecodeError, ValueError):  # TOMLDecodeError is a ValueError
         return None
     rev = data.get("sheet", {}).get("revision", 0) if isinstance(data.get("sheet"), dict) else 0
     return rev if isinstance(rev, int) and not isinstance(rev, bool) else None
@@ -429,9 +560,26 @@ def dumps(data: dict) -> str:
     return tomli_w.dumps(ordered)
 
 
-def write_atomic(path: str | Path, text: str | bytes) -> None:
-    """Write ``text`` to ``path`` through a temporary file in the same folder and a rename."""
+def write_atomic(path: str | Path, text: str | bytes, *, follow_symlinks: bool = True) -> None:
+    """Write ``text`` to ``path`` through a temporary file in the same folder and a rename.
+
+    A symbolic link is written through: its target gets the new text and the link stays a link (with
+    ``follow_symlinks=False`` a link is refused instead). Only a regular file is ever replaced. Any failure (a full
+    disk, a read-only folder) is an InputError naming the file; the file is then as it was.
+    """
     p = Path(path)
+    if p.is_symlink():
+        if not follow_symlinks:
+            raise InputError(str(p), "is a symbolic link; it is not replaced (write elsewhere, or remove the link); "
+                                     "nothing was written")
+        p = Path(os.path.realpath(p))
+    try:
+        st = os.stat(p)
+    except OSError:
+        st = None
+    if st is not None and not stat.S_ISREG(st.st_mode):
+        what = "a folder" if stat.S_ISDIR(st.st_mode) else _file_kind(st.st_mode)
+        raise InputError(str(path), f"is {what}, not a regular file; it is not replaced; nothing was written")
     data = text.encode("utf-8") if isinstance(text, str) else text
     try:
         p.parent.mkdir(parents=True, exist_ok=True)
@@ -445,11 +593,14 @@ def write_atomic(path: str | Path, text: str | bytes) -> None:
             os.fsync(fh.fileno())
         os.chmod(tmp, _mode_for(p))  # mkstemp makes 0600; keep the target's mode, else the umask's default
         os.replace(tmp, p)
-    except BaseException:
+    except BaseException as e:
         try:
             os.unlink(tmp)
         except OSError:
             pass
+        if isinstance(e, OSError):
+            kept = "it was left as it was" if st is not None else "nothing was written"
+            raise InputError(str(path), f"cannot write ({e.strerror or e}); {kept}") from None
         raise
 
 

@@ -16,7 +16,7 @@ import math
 from dataclasses import dataclass, field, fields
 from typing import Any, Literal
 
-from machines.errors import InputError
+from machines.errors import InputError, one_line
 
 
 @dataclass(frozen=True)
@@ -870,10 +870,21 @@ def generator_speed_error(frequency: float, rated_speed: float) -> InputError | 
 
 
 def validate_case(case: MachineCase) -> list[str]:
-    """Check physical sense across fields. Raises InputError for the impossible; returns warnings."""
+    """Check physical sense across fields. Raises InputError for the impossible; returns warnings.
+
+    Impossible: what no real machine or installation can be (a nameplate current below what the shaft output
+    needs, a CT or VT that would be destroyed by its own circuit, a bus at another voltage level, a load-shedding
+    stage above nominal frequency, ...): refused naming the key, because every setting would rest on it. Merely
+    unusual: kept and returned as a warning, which the sheet prints as a finding. The limits and their sources are
+    in METHODS.md §14.
+    """
     warnings: list[str] = []
     validate_sheet(case.sheet)
     m = case.machine
+    if not any(ch.isalnum() for ch in case.sheet.tag):
+        raise InputError("sheet.tag", f"expected a plant tag with letters or digits such as 'CW-P-201', got "
+                                      f"{one_line(case.sheet.tag)}")
+    warnings += _validate_voltage_level(case)  # first: a machine on the wrong bus makes every other check moot
     if isinstance(m, InductionMotor):
         warnings += _validate_motor(m)
         if case.load is None:
@@ -888,11 +899,8 @@ def validate_case(case: MachineCase) -> list[str]:
     s = case.supply
     if s.minimum_fault_level and s.fault_level and s.minimum_fault_level > s.fault_level:
         raise InputError("supply.minimum_fault_level", "expected at most supply.fault_level, got a larger value")
-    if abs(s.nominal_voltage - m.rated_voltage) > 0.15 * m.rated_voltage:
-        warnings.append(
-            f"supply.nominal_voltage ({s.nominal_voltage / 1e3:.4g} kV) differs from the machine's "
-            f"rated voltage ({m.rated_voltage / 1e3:.4g} kV) by more than 15 %: check the file"
-        )
+    warnings += _validate_instruments(case)
+    warnings += _validate_system(case)
     if s.fuse is not None:
         if s.fuse_rating is not None and abs(s.fuse_rating / s.fuse.rating - 1.0) > 1e-6:
             raise InputError("supply.fuse.rating", f"expected the same rating as supply.fuse_rating "
@@ -901,6 +909,118 @@ def validate_case(case: MachineCase) -> list[str]:
     g = case.grounding
     if g.method == "low-resistance" and g.fault_current_limit is None:
         warnings.append("grounding.fault_current_limit is missing: earth-fault sensitivity cannot be judged")
+    return warnings
+
+
+#: a machine runs continuously within ±10 % of its rated voltage (IEC 60034-1 cl. 7.3 zone B; NEMA MG 1-12.44);
+#: a bus beyond ±20 % is another voltage level, not an unusual supply (common practice, no published source)
+VOLTAGE_WARN, VOLTAGE_REFUSE = 0.10, 0.20
+#: IEEE C57.13 cl. 6.3: continuous thermal current rating factors go up to 4.0 (1.0, 1.33, 1.5, 2.0, 3.0, 4.0)
+CT_MAX_RATING_FACTOR = 4.0
+#: IEC 61869-3 cl. 5.3.2: rated voltage factor 1.2 continuous for every VT; 1.9 for 8 h on a non-effectively
+#: earthed system (neutral and earthing transformers)
+VT_VOLTAGE_FACTOR, NEUTRAL_VT_VOLTAGE_FACTOR = 1.2, 1.9
+#: a VT whose secondary sees less than half its rating at nominal voltage was chosen for another bus (common
+#: practice, no published source)
+VT_LOWEST_SHARE = 0.5
+#: [s] a maker's band allowing this long is the continuous range (machines.protection.frequency reads it so too)
+CONTINUOUS_ALLOWANCE = 1e7
+
+
+def machine_rated_current(m: Machine) -> float:
+    """The machine's rated line current [A]."""
+    if isinstance(m, InductionMotor):
+        return motor_rated_current(m)
+    return generator_rated_current(m.rated_apparent_power, m.rated_voltage)
+
+
+def machine_apparent_power(m: Machine) -> float:
+    """The machine's rated apparent power [VA] (a motor's is its rated input, √3·V·I)."""
+    return math.sqrt(3.0) * m.rated_voltage * machine_rated_current(m)
+
+
+def _validate_voltage_level(case: MachineCase) -> list[str]:
+    m, vn = case.machine, case.supply.nominal_voltage
+    dev = vn / m.rated_voltage - 1.0
+    if abs(dev) > VOLTAGE_REFUSE:
+        raise InputError("machine.rated_voltage",
+                         f"expected within ±{VOLTAGE_REFUSE:.0%} of the bus voltage supply.nominal_voltage "
+                         f"{vn / 1e3:.4g} kV (a machine cannot run at another voltage level), got "
+                         f"{m.rated_voltage / 1e3:.4g} kV")
+    if abs(dev) > VOLTAGE_WARN:
+        return [f"supply.nominal_voltage ({vn / 1e3:.4g} kV) differs from the machine's rated voltage "
+                f"({m.rated_voltage / 1e3:.4g} kV) by {dev:+.0%}, beyond the ±10 % a machine runs at continuously "
+                "(IEC 60034-1 zone B): check the file"]
+    return []
+
+
+def _validate_instruments(case: MachineCase) -> list[str]:
+    ins, m = case.instruments, case.machine
+    i_rated = machine_rated_current(m)
+    for key in ("phase_ct", "differential_ct"):
+        ct: Ratio | None = getattr(ins, key)
+        if ct is not None and i_rated > CT_MAX_RATING_FACTOR * ct.primary:
+            raise InputError(f"instruments.{key}",
+                             f"expected a CT primary of at least {i_rated / CT_MAX_RATING_FACTOR:.4g} A: the "
+                             f"machine's rated current {i_rated:.4g} A is {i_rated / ct.primary:.3g} times the "
+                             f"{ct.primary:g} A primary, and no CT carries more than {CT_MAX_RATING_FACTOR:g} times "
+                             "its rating continuously (IEEE C57.13 thermal rating factor)")
+    v_ll = case.supply.nominal_voltage
+    if ins.vt is not None:
+        shares = (v_ll / ins.vt.primary, v_ll / math.sqrt(3.0) / ins.vt.primary)  # line-to-line, line-to-neutral
+        if not any(VT_LOWEST_SHARE <= x <= VT_VOLTAGE_FACTOR for x in shares):
+            raise InputError("instruments.vt",
+                             f"expected a VT primary near the bus voltage {v_ll / 1e3:.4g} kV line to line "
+                             f"({v_ll / math.sqrt(3.0) / 1e3:.4g} kV line to neutral), got "
+                             f"{ins.vt.primary:g}/{ins.vt.secondary:g} V: at nominal voltage it would run at "
+                             f"{min(shares, key=lambda x: abs(math.log(x))):.3g} times its rated primary (at most "
+                             f"{VT_VOLTAGE_FACTOR:g}, IEC 61869-3 voltage factor)")
+    v_ln = v_ll / math.sqrt(3.0)
+    for key, ratio in (("instruments.neutral_vt", ins.neutral_vt),
+                       ("grounding.transformer_ratio", case.grounding.transformer_ratio)):
+        if ratio is not None and v_ln > NEUTRAL_VT_VOLTAGE_FACTOR * ratio.primary:
+            raise InputError(key, f"expected a primary of at least {v_ln / NEUTRAL_VT_VOLTAGE_FACTOR:.4g} V: a "
+                                  f"full earth fault puts the line-to-neutral {v_ln:.4g} V on it, "
+                                  f"{v_ln / ratio.primary:.3g} times its {ratio.primary:g} V primary (at most "
+                                  f"{NEUTRAL_VT_VOLTAGE_FACTOR:g}, IEC 61869-3 voltage factor), got "
+                                  f"{ratio.primary:g}/{ratio.secondary:g} V")
+    return []
+
+
+def _validate_system(case: MachineCase) -> list[str]:
+    """The system the machine is on: at least as large as the machine, stages below nominal frequency."""
+    warnings = []
+    m, s = case.machine, case.supply
+    rating = machine_apparent_power(m)
+    if s.system_rating is not None and s.system_rating < rating:
+        raise InputError("supply.system_rating",
+                         f"expected at least the machine's own rating {rating / 1e6:.4g} MVA (the system includes "
+                         f"it), got {s.system_rating / 1e6:.4g} MVA")
+    if isinstance(m, InductionMotor):
+        # a source whose fault level is below the motor's own input cannot run it at all, let alone start it
+        for key in ("fault_level", "minimum_fault_level"):
+            level = getattr(s, key)
+            if level is not None and level <= rating:
+                raise InputError(f"supply.{key}",
+                                 f"expected a fault level well above the motor's rated input {rating / 1e6:.4g} MVA "
+                                 f"(a source that weak cannot run it), got {level / 1e6:.4g} MVA")
+        if s.source_impedance is not None:
+            z_base = m.rated_voltage ** 2 / rating
+            if s.source_impedance >= z_base:
+                raise InputError("supply.source_impedance",
+                                 f"expected well below the motor's base impedance {z_base:.4g} ohm (a source that "
+                                 f"weak cannot run it), got {s.source_impedance:.4g} ohm")
+    fn = m.frequency
+    for key in ("underfrequency_stages", "load_shedding_stages"):
+        for i, stage in enumerate(getattr(s, key)):
+            if stage.frequency >= fn:
+                raise InputError(f"supply.{key}[{i}].frequency",
+                                 f"expected an underfrequency stage below the nominal {fn:g} Hz, got "
+                                 f"{stage.frequency:g} Hz")
+            if stage.frequency < 0.9 * fn:
+                warnings.append(f"supply.{key}[{i}].frequency {stage.frequency:g} Hz is more than 10 % below the "
+                                f"nominal {fn:g} Hz, where turbines and auxiliaries are not made to run: check the "
+                                "stage")
     return warnings
 
 
@@ -954,6 +1074,21 @@ def _validate_motor(m: InductionMotor) -> list[str]:
     warnings = []
     computed = rated_current_from_output(m.rated_output, m.rated_voltage, m.efficiency, m.power_factor)
     if m.rated_current:
+        # the electrical input √3·V·I·cos φ·η is the shaft output: with cos φ ≤ 1 and η ≤ 1 the current is at
+        # least P/(√3·V) (2 % left for rounding on the nameplate)
+        least = m.rated_output / (math.sqrt(3.0) * m.rated_voltage)
+        if m.rated_current < 0.98 * least:
+            raise InputError(
+                "machine.rated_current",
+                f"expected at least {least:.4g} A, the current {m.rated_output / 1e3:.4g} kW needs at "
+                f"{m.rated_voltage / 1e3:.4g} kV with a power factor and efficiency of 1, got {m.rated_current:.4g} A",
+            )
+        if m.rated_current > 2.0 * computed:
+            raise InputError(
+                "machine.rated_current",
+                f"expected near {computed:.4g} A, computed from output, voltage, efficiency and power factor (more "
+                f"than twice that contradicts them), got {m.rated_current:.4g} A",
+            )
         dev = m.rated_current / computed - 1.0
         if abs(dev) > 0.10:
             warnings.append(
@@ -1086,10 +1221,26 @@ def _validate_generator(g: SynchronousGenerator) -> list[str]:
     if salient and poles == 2:
         warnings.append("machine.rotor is salient but the speed gives a 2-pole machine: check the rotor type")
     bands = g.frequency_limits
+    fn = g.frequency
     for i, b in enumerate(bands):
         if b.low >= b.high:
             raise InputError(
                 f"machine.frequency_limits[{i}].low", f"expected below high ({b.high:g} Hz), got {b.low:g} Hz"
+            )
+        if b.low <= fn <= b.high and b.allowed < CONTINUOUS_ALLOWANCE:
+            raise InputError(
+                f"machine.frequency_limits[{i}]",
+                f"expected a restricted band wholly below or wholly above the nominal {fn:g} Hz (the machine runs "
+                f"there without limit), got {b.low:g} to {b.high:g} Hz allowed {b.allowed:g} s",
+            )
+    ordered = sorted(range(len(bands)), key=lambda i: bands[i].low)
+    for i, j in zip(ordered, ordered[1:]):
+        if bands[j].low < bands[i].high:
+            raise InputError(
+                f"machine.frequency_limits[{j}]",
+                f"expected bands that do not overlap: {bands[j].low:g} to {bands[j].high:g} Hz overlaps "
+                f"machine.frequency_limits[{i}] ({bands[i].low:g} to {bands[i].high:g} Hz); give each frequency "
+                "one allowed time",
             )
     return warnings
 

@@ -19,6 +19,8 @@ import math
 from dataclasses import dataclass, field
 from typing import Any, Literal
 
+from machines.errors import UNSAFE
+
 FORMAT = "relaywright.settings/1"
 
 Source = Literal["standard", "common-practice", "maker-data", "entered", "override", "derived"]
@@ -250,8 +252,8 @@ class SettingsRecord:
             "functions": [f.to_json() for f in self.functions],
             "checks": [c.to_json() for c in self.checks],
             "drawings": [d.to_json() for d in drawings],
-            "sheet": self.sheet,
-            "inputs": self.inputs,
+            "sheet": _finite(self.sheet),
+            "inputs": _finite(self.inputs),
             "start_profiles": _clean(self.start_profiles),
         }
 
@@ -261,9 +263,39 @@ class SettingsRecord:
 
 
 def dumps_json(data: dict, indent: int | None = 2) -> str:
-    """JSON text of a record's plain data (compact when ``indent`` is None: Python's fast encoder)."""
+    """JSON text of a record's plain data (compact when ``indent`` is None: Python's fast encoder).
+
+    Characters a terminal acts on (controls, bidirectional overrides) are written as ``\\uXXXX`` escapes, so the
+    text is safe to print and reads back the same.
+
+    >>> dumps_json({"tag": "P\\u202e1"}, None)
+    '{"tag":"P\\\\u202e1"}'
+    """
     separators = None if indent is not None else (",", ":")
-    return json.dumps(data, indent=indent, ensure_ascii=False, allow_nan=False, separators=separators)
+    text = json.dumps(data, indent=indent, ensure_ascii=False, allow_nan=False, separators=separators)
+    return UNSAFE.sub(_json_escape, text) if UNSAFE.search(text) else text
+
+
+def _json_escape(m) -> str:
+    ch = m.group(0)
+    if ch in "\n\r\t":  # JSON's own whitespace between values (inside strings json.dumps escaped them)
+        return ch
+    code = ord(ch)
+    if code < 0x10000:
+        return f"\\u{code:04x}"
+    code -= 0x10000
+    return f"\\u{0xD800 + (code >> 10):04x}\\u{0xDC00 + (code & 0x3FF):04x}"
+
+
+def _finite(v: Any) -> Any:
+    """Entered data as it was written, with a non-finite float (TOML allows ``inf`` and ``nan``) as None."""
+    if isinstance(v, float) and not math.isfinite(v):
+        return None
+    if isinstance(v, dict):
+        return {k: _finite(x) for k, x in v.items()}
+    if isinstance(v, (list, tuple)):
+        return [_finite(x) for x in v]
+    return v
 
 
 def _clean(v: Any) -> Any:

@@ -1,4 +1,9 @@
-"""The settings record as a terminal table (rich). Layout only."""
+"""The settings record as a terminal table (rich). Layout only.
+
+Every string from the record passes through :func:`_esc`: rich markup escaped, and control and bidirectional
+formatting characters shown as escapes (``\\x1b``, ``\\u202e``), so that a tag or description can neither
+style the table nor act on the terminal (clear it, retitle it, hide or reverse text).
+"""
 
 from __future__ import annotations
 
@@ -29,9 +34,9 @@ def print_record(record: SettingsRecord, caution: str = "", file=None) -> None:
     from rich.table import Table
 
     con = Console(file=file, highlight=False, soft_wrap=False)
-    con.print(f"[bold]{_esc(record.tag)}[/bold]  {record.kind}  revision {record.revision}  "
-              f"practice {record.practice}")
-    con.print(f"inputs {record.inputs_fingerprint}")
+    con.print(f"[bold]{_esc(record.tag)}[/bold]  {_esc(record.kind)}  revision {_esc(record.revision)}  "
+              f"practice {_esc(record.practice)}")
+    con.print(f"inputs {_esc(record.inputs_fingerprint)}")
     if caution:
         con.print(f"[yellow]{_esc(caution)}[/yellow]")
 
@@ -43,7 +48,7 @@ def print_record(record: SettingsRecord, caution: str = "", file=None) -> None:
         t.add_column("finding", overflow="fold")
         for fid, c in findings:
             style = "bold red" if c.status == "fail" else "yellow"
-            t.add_row(f"[{style}]{_MARK[c.status]}[/{style}]", fid, _esc(c.message))
+            t.add_row(f"[{style}]{_MARK[c.status]}[/{style}]", _esc(fid), _esc(c.message))
         con.print(t)
     else:
         con.print("Findings: none (every check passed)")
@@ -54,7 +59,7 @@ def print_record(record: SettingsRecord, caution: str = "", file=None) -> None:
         t.add_column("value", justify="right")
         t.add_column("note", overflow="fold")
         for key, s in record.derived.items():
-            t.add_row(label_of(key, s.to_json()), quantity(s.value, s.unit), _esc(s.note))
+            t.add_row(_esc(label_of(key, s.to_json())), _esc(quantity(s.value, s.unit)), _esc(s.note))
         con.print(t)
 
     t = Table(title="Settings", title_justify="left")
@@ -67,11 +72,14 @@ def print_record(record: SettingsRecord, caution: str = "", file=None) -> None:
     if not record.functions:
         con.print("No protection functions are computed for this machine yet.")
     for f in record.functions:
-        con.print(f"[bold]{f.id}[/bold] {_esc(f.title)}: {_esc(f.basis)}"
+        con.print(f"[bold]{_esc(f.id)}[/bold] {_esc(f.title)}: {_esc(f.basis)}"
                   + (f"  [dim]({_esc('; '.join(f.references))})[/dim]" if f.references else ""))
 
 
-def _esc(text: str) -> str:
+def _esc(text: object) -> str:
+    """``text`` safe to print with rich: no markup, no control or bidirectional formatting characters."""
     from rich.markup import escape
 
-    return escape(str(text))
+    from machines.errors import printable
+
+    return escape(printable(text))

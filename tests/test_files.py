@@ -198,3 +198,85 @@ def test_an_iec_ct_class_gives_a_warning_not_an_error():
     case, warnings = case_from_dict(edited("instruments.phase_ct_class", "5P20"))
     record = run_study(case, warnings)
     assert any("IEC 61869-2" in c.message and c.status == "warn" for _, c in record.all_checks())
+
+
+# ---------------------------------------------------------------------------------------------------- reading and
+# writing files safely: regular files only, a size limit before reading, links written through, errors naming the
+# file
+
+
+def test_only_regular_files_are_read(tmp_path):
+    import os
+
+    from machines.files import read_bytes
+
+    fifo = tmp_path / "pipe.toml"
+    os.mkfifo(fifo)
+    with pytest.raises(InputError, match=r"pipe.toml: expected a machine file \(.toml\), got a named pipe"):
+        read_bytes(fifo)  # would block for ever if it were opened
+    with pytest.raises(InputError, match="got a device; only regular files are read"):
+        read_bytes("/dev/zero")
+    dangling = tmp_path / "gone.toml"
+    dangling.symlink_to(tmp_path / "nowhere.toml")
+    with pytest.raises(InputError, match=r"no such file \(a symbolic link to nothing\)"):
+        read_bytes(dangling)
+    big = tmp_path / "big.toml"
+    big.write_bytes(b"#" * 2_000)
+    with pytest.raises(InputError, match="of at most 1 kB, got 2000 bytes"):
+        read_bytes(big, limit=1_000)
+
+
+def test_a_full_disk_names_the_file_and_leaves_it_as_it_was(tmp_path, monkeypatch):
+    # issue: "error: : No space left on device" named no file
+    import errno
+    import os
+
+    from machines.files import write_atomic
+
+    target = tmp_path / "m.toml"
+    target.write_text("old", "utf-8")
+
+    def full(fd):
+        raise OSError(errno.ENOSPC, "No space left on device")
+
+    monkeypatch.setattr(os, "fsync", full)
+    with pytest.raises(InputError) as err:
+        write_atomic(target, "new")
+    assert str(err.value) == f"{target}: cannot write (No space left on device); it was left as it was"
+    assert target.read_text("utf-8") == "old" and [p.name for p in tmp_path.iterdir()] == ["m.toml"]
+
+
+def test_a_link_is_written_through_or_refused(tmp_path):
+    from machines.files import write_atomic
+
+    real = tmp_path / "store" / "m.toml"
+    real.parent.mkdir()
+    real.write_text("old", "utf-8")
+    link = tmp_path / "m.toml"
+    link.symlink_to(real)
+    write_atomic(link, "new")
+    assert link.is_symlink() and real.read_text("utf-8") == "new"
+    with pytest.raises(InputError, match="is a symbolic link; it is not replaced"):
+        write_atomic(link, "other", follow_symlinks=False)
+    assert real.read_text("utf-8") == "new"
+
+
+def test_a_pipe_is_never_written_over(tmp_path):
+    import os
+
+    from machines.files import write_atomic
+
+    fifo = tmp_path / "x.pdf"
+    os.mkfifo(fifo)
+    with pytest.raises(InputError, match="is a named pipe .FIFO., not a regular file"):
+        write_atomic(fifo, b"%PDF-")
+
+
+def test_write_machine_file_through_a_link_keeps_the_link(tmp_path):
+    real = tmp_path / "store" / "m.toml"
+    real.parent.mkdir()
+    write_machine_file(real, motor_data())
+    link = tmp_path / "m.toml"
+    link.symlink_to(real)
+    write_machine_file(link, edited("sheet.revision", 2))
+    assert link.is_symlink() and load_case(real)[0].sheet.revision == 2

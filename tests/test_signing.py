@@ -48,6 +48,7 @@ def make_p12(path: Path, common_name: str, password: str) -> Path:
             .sign(key, hashes.SHA256()))
     path.write_bytes(pkcs12.serialize_key_and_certificates(
         b"signer", key, cert, None, serialization.BestAvailableEncryption(password.encode())))
+    path.with_suffix(".pem").write_bytes(cert.public_bytes(serialization.Encoding.PEM))  # for verify --trust
     return path
 
 
@@ -165,11 +166,13 @@ def test_verify_command_ok_and_machine_match(tmp_path, key, capsys, monkeypatch)
     pdf = tmp_path / "CH-M-101-rev1.pdf"
     assert pdf.is_file()
     capsys.readouterr()
-    assert verify_command(pdf, machine) == 0
+    assert verify_command(pdf, machine, trust=[key.with_suffix(".pem")]) == 0
     out = capsys.readouterr().out
     assert "signed by: Organization: Harbourside test signer, Common Name: A. Okafor" in out
-    assert "matches (same inputs fingerprint)" in out
+    assert "matches value by value" in out
     assert out.strip().endswith("verify: OK")
+    assert verify_command(pdf, machine) == 3  # without --trust the signer is not checked
+    assert "verify: intact, signer not checked" in capsys.readouterr().out
 
     # the machine file changes after the sheet was signed: the sheet no longer matches it
     machine.write_text(issued(EXAMPLE.read_text("utf-8")).replace('rated_current = "186 A"',

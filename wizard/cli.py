@@ -4,7 +4,8 @@ Start-up matters: this module imports typer and the standard library only; every
 reportlab, questionary, pyhanko) lives inside the command that needs it, so ``relaywright --help`` stays fast.
 
 Exit codes: 0 done; 1 settings produced but a check failed (or a signature/fingerprint did not verify);
-2 bad input or usage. Errors are one line on stderr, never a traceback.
+2 bad input or usage; 3 (``verify``) the sheet is whole but its signer was not checked (no ``--trust``). Errors
+are one line on stderr, never a traceback.
 """
 
 from __future__ import annotations
@@ -122,13 +123,21 @@ def comtrade_cmd(
 @app.command("verify")
 def verify_cmd(
     pdf: Annotated[Path, typer.Argument(help="Signed settings sheet (.pdf).")],
-    machine: Annotated[Optional[Path], typer.Option("--machine", help="Machine file the sheet should match.")]
-    = None,
+    machine: Annotated[Optional[Path], typer.Option("--machine", help="Machine file the sheet should match, value "
+                                                    "by value.")] = None,
+    trust: Annotated[Optional[list[Path]], typer.Option("--trust", help="Certificate of a signer you trust, or of "
+                                                        "their issuer (PEM or DER), or a folder of them; "
+                                                        "repeatable. Without it the signer is not checked "
+                                                        "(exit 3).")] = None,
 ) -> None:
-    """Check a sheet's digital signature and, with --machine, that it still matches the machine file."""
+    """Check that a sheet is whole and who signed it and, with --machine, that it matches the machine file.
+
+    Exit 0: whole, signer trusted (and matching); 1: changed, damaged, not signed, not trusted or not matching;
+    3: whole, but no --trust was given to check the signer.
+    """
     from reports.signing import verify_command
 
-    code = verify_command(pdf, machine)
+    code = verify_command(pdf, machine, trust or ())
     caution()
     raise typer.Exit(code)
 
@@ -216,25 +225,38 @@ def _full_short_help() -> None:
 
 def main() -> None:
     """Entry point: run the app, turning bad input into one line on stderr and exit code 2."""
-    from machines.errors import InputError
+    from machines.errors import InputError, printable
     from wizard.terminal import for_stream
 
     _full_short_help()
     try:
-        app()
+        from typer import TyperException as CommandLineError  # typer with its own copy of click
+    except ImportError:  # pragma: no cover - typer on the click package
+        from click import ClickException as CommandLineError
+
+    try:
+        code = app(args=sys.argv[1:] or ["--help"], standalone_mode=False)  # no arguments: the help
     except InputError as e:
         typer.echo(for_stream(f"error: {e}", sys.stderr), err=True)  # one line for scripts, wrapped for people
         sys.exit(EXIT_BAD_INPUT)
-    except KeyboardInterrupt:
+    except CommandLineError as e:  # usage: one line, like every other error (the default would print four)
+        ctx = getattr(e, "ctx", None)
+        where = f" (see '{ctx.command_path} --help')" if ctx is not None else ""
+        typer.echo(for_stream(printable(f"error: {e.format_message()}{where}"), sys.stderr), err=True)
+        sys.exit(EXIT_BAD_INPUT)
+    except (KeyboardInterrupt, typer.Abort):
         typer.echo("interrupted", err=True)
         sys.exit(130)
     except OSError as e:
-        typer.echo(f"error: {e.filename or ''}: {e.strerror or e}", err=True)
+        where = f"{e.filename}: " if e.filename else ""
+        typer.echo(printable(f"error: {where}{e.strerror or e}"), err=True)
         sys.exit(EXIT_BAD_INPUT)
     except Exception as e:  # a bug must still not print a traceback at a practitioner
-        typer.echo(f"error: could not complete ({type(e).__name__}: {str(e).splitlines()[0] if str(e) else ''}); "
-                   "nothing was written; please report this with the input file", err=True)
+        first = str(e).splitlines()[0] if str(e) else ""
+        typer.echo(printable(f"error: could not complete ({type(e).__name__}: {first}); nothing was written; please "
+                             "report this with the input file"), err=True)
         sys.exit(EXIT_BAD_INPUT)
+    sys.exit(code if isinstance(code, int) else EXIT_OK)
 
 
 if __name__ == "__main__":  # pragma: no cover

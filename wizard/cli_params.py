@@ -29,8 +29,10 @@ def _plain_path(info) -> bool:
 
 def _plain(param) -> bool:
     desc = getattr(param, "type_descriptor", None)
-    if desc is None or param.multiple or param.nargs != 1 or desc.parameter_info.parser is not None:
+    if desc is None or param.nargs != 1 or desc.parameter_info.parser is not None:
         return False
+    if param.multiple:  # a repeatable path option (verify --trust)
+        return desc.annotation == list[Path] and _plain_path(desc.parameter_info)
     if desc.annotation is Path:
         return _plain_path(desc.parameter_info)
     if desc.annotation is int:
@@ -42,6 +44,11 @@ def _read(param, ctx, value, typers_reading):
     """A plain Path, str or int value read directly when well formed; anything else goes to ``typers_reading``."""
     desc = param.type_descriptor
     kind, info = desc.annotation, desc.parameter_info
+    if param.multiple:  # each value of a repeatable path option, as a list; None when it is not given
+        if value is not None and not (isinstance(value, (list, tuple)) and all(isinstance(v, str) for v in value)):
+            return typers_reading(ctx, value)
+        value = [Path(v) for v in value or ()] or None
+        return param.callback(ctx, param, value) if param.callback is not None else value
     if isinstance(value, str):
         if kind is int:
             if not _INTEGER.fullmatch(value):

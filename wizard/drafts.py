@@ -88,7 +88,8 @@ def load_draft(path: str | Path) -> tuple[Draft, Answers]:
     answers, flow, asked = doc.get("answers", {}), doc.get("flow", {}), doc.get("asked", [])
     command = doc.get("command", "new")
     if not (isinstance(answers, dict) and isinstance(flow, dict) and isinstance(asked, list)
-            and all(isinstance(k, str) for k in asked) and command in ("new", "revise")):
+            and all(isinstance(k, str) for k in asked) and command in ("new", "revise")
+            and all(isinstance(v, dict) for k, v in answers.items() if k != "format")):  # sections are tables
         raise InputError(str(p), "the draft is damaged (answers, flow or asked has the wrong shape)")
     output, saved = doc.get("output"), doc.get("saved")
     draft = Draft(path=p, command=command, output=Path(output) if isinstance(output, str) else None,

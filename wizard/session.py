@@ -19,7 +19,7 @@ import copy
 import sys
 from pathlib import Path
 
-from machines.errors import InputError
+from machines.errors import InputError, one_line
 from machines.files import (case_from_dict, file_revision, parse_toml, read_text, safe_file_stem, write_atomic,
                             write_machine_file)
 from reports.notices import CAUTION_LINE
@@ -43,7 +43,7 @@ def say(text: str = "", wrap: bool = True) -> None:
 
 
 def _has_terminal() -> bool:
-    return sys.stdin.isatty() and sys.stdout.isatty()
+    return bool(sys.stdin and sys.stdout and sys.stdin.isatty() and sys.stdout.isatty())  # None when closed
 
 
 def _rule_width() -> int:
@@ -652,6 +652,10 @@ def _apply_changes(a: Answers, path: Path) -> tuple[str, str]:
             raise InputError(section, f"expected a table ([{section}]), got {table!r}")
         target = a.data.setdefault(section, {})
         for name, value in table.items():
+            unchanged = type(value) is int and value == target.get("revision", 0)  # (True == 1 in Python)
+            if (section, name) == ("sheet", "revision") and not unchanged:
+                raise InputError("sheet.revision", f"is set by relaywright revise, which bumps it; leave it out of "
+                                                   f"the answers file (got {one_line(value)})")
             if (section, name) != ("sheet", "history"):
                 target[name] = value
     return by.strip(), reason.strip()

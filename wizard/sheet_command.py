@@ -83,7 +83,7 @@ def make_sheet(file: Path, output: Path | None = None, page_size: str | None = N
     if sign is not None:
         from reports.signing import sign_pdf
 
-        pdf = sign_pdf(pdf, sign, password, box=box)
+        pdf = sign_pdf(pdf, sign, password, box=box, record=record.to_json())  # the signature covers the record
     target = default_output(Path(file), record.tag, record.revision) if output is None else Path(output)
     if target.is_dir():
         target = target / default_output(Path(file), record.tag, record.revision).name

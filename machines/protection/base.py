@@ -13,10 +13,11 @@ Methods: machines/METHODS.md §12 (test points and their tolerances).
 from __future__ import annotations
 
 import math
+import re
 from dataclasses import dataclass, field
 from typing import Any, Literal
 
-from machines.errors import InputError
+from machines.errors import InputError, one_line, unsafe_character
 from machines.model import MachineCase, Ratio
 from machines.record import Setting, Source, TestPoint
 from machines.standards.accuracy import operate_time_tolerance, tolerance_rule_text
@@ -81,21 +82,48 @@ class StudyContext:
         self.steps[(fid, key)] = step
         return self.round_to_step(value, step, ratio, rounding), source
 
+    #: settings that may be zero: delays (0 s is instantaneous), the least operate time, the offset of a mho
+    #: circle (0 is a circle through the origin), the voltage of a fault checked (0 at the terminals); every other
+    #: number a relay holds is positive
+    ZERO_ALLOWED = ("delay", "minimum_time", "offset", "check_voltage")
+    #: settings that are a share of something whole (a fraction of the winding, a share of the rated I2)
+    AT_MOST_ONE = ("coverage",)
+    MAX_WHOLE = 1000  #: the largest whole-number setting (starts in succession, counts)
+
     def _parse_override(self, okey: str, text: str, kind: str, unit: str) -> Any:
+        """The engineer's value for ``okey`` as the rule's kind, or InputError naming ``overrides.<okey>``.
+
+        What no relay can hold is refused here, for every function at once: zero or a negative value where the
+        setting is a pickup, a time constant, a multiplier, a count or a reach; a whole number out of range;
+        a fraction above 1; text that is not the kind asked for (METHODS.md §14.7).
+        """
         path = f"overrides.{okey}"
+        name = okey.partition(".")[2]
+        shown = one_line(text)
         if kind == "boolean":
             low = text.strip().lower()
             if low not in ("true", "false"):
-                raise InputError(path, f"expected true or false, got {text!r}")
+                raise InputError(path, f"expected true or false, got {shown}")
             return low == "true"
         if kind == "integer":
-            if not text.strip().isdigit():
-                raise InputError(path, f"expected a whole number, got {text!r}")
-            return int(text)
+            if not re.fullmatch(r"\s*\d{1,4}\s*", text):
+                raise InputError(path, f"expected a whole number from 1 to {self.MAX_WHOLE}, got {shown}")
+            value = int(text)
+            if not 1 <= value <= self.MAX_WHOLE:
+                raise InputError(path, f"expected a whole number from 1 to {self.MAX_WHOLE}, got {value}")
+            return value
         if kind == "text":
+            if unsafe_character(text) is not None or len(text) > 60:
+                raise InputError(path, f"expected a short plain name, got {shown}")
             return text
-        return parse_quantity(text, kind, unit or None, key=path, default_unit="pu" if kind == "per_unit" else None,
-                              allow_zero=True)
+        zero_ok = any(part in name for part in self.ZERO_ALLOWED)
+        value = parse_quantity(text, kind, unit or None, key=path, default_unit="pu" if kind == "per_unit" else None,
+                               allow_zero=zero_ok)
+        if not math.isfinite(value):  # pragma: no cover - parse_quantity refuses non-finite numbers
+            raise InputError(path, f"expected a finite number, got {shown}")
+        if name in self.AT_MOST_ONE and value > 1.0:
+            raise InputError(path, f"expected a fraction of at most 1 (100 %), got {shown}")
+        return value
 
     def _ratio(self, kind: str, via: Ratio | None | object) -> Ratio | None:
         if via is not PHASE:
