@@ -102,6 +102,12 @@ IMPOSSIBLE = [
     ("46.continuous_i2 = 0", with_override(GAS, "46.continuous_i2", 0), "overrides.46.continuous_i2"),
     ("59N coverage above 100 %", with_override(GAS, "59N.coverage", "1.2"), "overrides.59N.coverage"),
     ("a 400-digit override", with_override(MOTOR, "49.pickup_current", 10 ** 400), "overrides.49.pickup_current"),
+    # no relay current input is set beyond some tens of times its CT's rating (METHODS.md §14.7)
+    ("49 pickup 1e30 A", with_override(MOTOR, "49.pickup_current", "1e30 A"), "overrides.49.pickup_current"),
+    ("generator 49 pickup 1e30 A", with_override(GAS, "49.pickup_current", "1e30 A"),
+     "overrides.49.pickup_current"),
+    ("a time constant of a century", with_override(MOTOR, "49.heating_time_constant", "100 year"),
+     "overrides.49.heating_time_constant"),
     ("starts as text", with_override(MOTOR, "66.starts_cold", "abc"), "overrides.66.starts_cold"),
     ("a blank CT class", edited(MOTOR, instruments__phase_ct_class=""), "instruments.phase_ct_class"),
     ("a curve name with an escape", with_override(GAS, "51V.curve", "x\x1b[2J"), "overrides.51V.curve"),
@@ -180,3 +186,20 @@ def test_duplicate_keys_are_named(text, fragment):
 def test_a_tag_clean_for_a_file_name_and_one_that_is_not_are_both_kept_as_written():
     case, _ = case_from_dict(edited(MOTOR, sheet__tag="P-101/A <spare>"))
     assert case.sheet.tag == "P-101/A <spare>"
+
+
+def test_a_generator_49_pickup_above_the_whole_capability_curve_fails_in_words():
+    # IEC 60034-1 §9.3.2: 150 % for 30 s; a replica picking up at 2.5 pu protects no point of it
+    rated = 5.625e6 / (3 ** 0.5 * 13.8e3)  # the example's 5.625 MVA at 13.8 kV
+    case, found = case_from_dict(with_override(GAS, "49.pickup_current", f"{2.5 * rated:.0f} A"))
+    record = run_study(case, found)
+    f49 = record.function("49")
+    assert any(c.status == "fail" and "above every point" in c.message for c in f49.checks)
+
+
+def test_a_motor_49_that_never_trips_at_locked_rotor_says_so_in_words():
+    # the replica picks up above the locked-rotor current: its operate time there is not finite
+    data = with_override(MOTOR, "49.pickup_current", "1500 A")
+    record = run_study(*case_from_dict(data))
+    note = record.derived["thermal_trip_time_locked_rotor_hot"].note
+    assert note.startswith("never trips") and "inf" not in note

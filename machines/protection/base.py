@@ -69,6 +69,7 @@ class StudyContext:
         else:
             self.used_overrides.add(okey)
             value, source = self._parse_override(okey, text, kind, unit), "override"
+            self._refuse_beyond_any_relay(okey, value, kind, self._ratio(kind, via))
             rounding = "nearest"
         if kind == "integer" and isinstance(value, int) and not isinstance(value, bool):
             self.steps[(fid, key)] = 1.0
@@ -124,6 +125,27 @@ class StudyContext:
         if name in self.AT_MOST_ONE and value > 1.0:
             raise InputError(path, f"expected a fraction of at most 1 (100 %), got {shown}")
         return value
+
+    #: the most a relay input can be set to, in multiples of the instrument transformer's primary rating: relay
+    #: current inputs are set up to some tens of times their rated current, voltage inputs up to about twice their
+    #: rated voltage; these bounds are generous on purpose, they catch only a slip of the keyboard (METHODS.md §14.7)
+    MAX_CURRENT_MULTIPLE = 100.0
+    MAX_VOLTAGE_MULTIPLE = 3.0
+    MAX_TIME = 1.0e6  #: [s], about 11.6 days: longer than any relay's time setting
+
+    def _refuse_beyond_any_relay(self, okey: str, value: Any, kind: str, ratio: Ratio | None) -> None:
+        """InputError for an override no relay input can hold: a current or voltage far beyond its instrument
+        transformer's rating, or a time beyond any relay's range."""
+        if isinstance(value, bool) or not isinstance(value, (int, float)):
+            return
+        limit, unit, what = {
+            "current": (ratio and self.MAX_CURRENT_MULTIPLE * ratio.primary, "A", "100 × the CT's primary rating"),
+            "voltage": (ratio and self.MAX_VOLTAGE_MULTIPLE * ratio.primary, "V", "3 × the VT's primary rating"),
+            "time": (self.MAX_TIME, "s", "longer than any relay's time range"),
+        }.get(kind, (None, "", ""))
+        if limit and value > limit:
+            shown = one_line(self.case.override(okey) or "")
+            raise InputError(f"overrides.{okey}", f"expected at most {limit:.4g} {unit} ({what}), got {shown}")
 
     def _ratio(self, kind: str, via: Ratio | None | object) -> Ratio | None:
         if via is not PHASE:

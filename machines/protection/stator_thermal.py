@@ -25,9 +25,9 @@ TEST_MULTIPLES = (1.3, 1.54, 2.26)  #: test currents, pu of rated
 CAPABILITY_MARGIN = 0.9
 
 
-def fitted_time_constant(k: float, points, margin: float = 1.0) -> float:
+def fitted_time_constant(k: float, points, margin: float = 1.0) -> float | None:
     """Largest τ [s] for which the hot replica (prior current 1 pu) trips within ``margin`` × each (I [pu], t [s])
-    point.
+    point; None when the pickup k is above every point (no τ protects any of them).
 
     Notes
     -----
@@ -37,7 +37,8 @@ def fitted_time_constant(k: float, points, margin: float = 1.0) -> float:
     >>> round(fitted_time_constant(1.05, ((1.16, 120.0),)), 1)
     341.1
     """
-    return min(margin * t / math.log((i * i - 1.0) / (i * i - k * k)) for i, t in points if i > k)
+    taus = [margin * t / math.log((i * i - 1.0) / (i * i - k * k)) for i, t in points if i > k]
+    return min(taus) if taus else None
 
 
 def settings(ctx: StudyContext) -> FunctionSettings:
@@ -56,6 +57,10 @@ def settings(ctx: StudyContext) -> FunctionSettings:
         tau0 = 600.0
     else:
         tau0 = fitted_time_constant(k, points, CAPABILITY_MARGIN)
+        if tau0 is None:
+            checks.append(Check("fail", f"Pickup {k:.3g} pu is above every point of the armature's short-time "
+                                        f"capability ({curve_ref}): the replica protects none of it."))
+            tau0 = 600.0
     maker_tau = m.heating_time_constant
     tau, tau_src = ctx.choose(FID, "heating_time_constant", maker_tau or tau0, "time", "s",
                               "maker-data" if maker_tau else "standard", rounding="down")

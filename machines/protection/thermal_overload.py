@@ -335,16 +335,23 @@ def _start_checks(checks: list[Check], b, m, pickup: float, tau: float, flc: flo
                 break
 
 
+def _share_of_limit(trip: float, limit: float, state: str) -> str:
+    """The note beside a locked-rotor operate time: its share of the stall limit, in words when it never trips."""
+    if not math.isfinite(trip):
+        return f"never trips at locked-rotor current: the {state} stall limit {limit:.3g} s is not protected by 49"
+    return f"{trip / limit:.0%} of the {state} stall limit {limit:.3g} s"
+
+
 def _record(ctx: StudyContext, b, pickup: float, tau: float, t_hot: float, t_cold: float, flc: float) -> None:
     m = ctx.case.machine
     d = ctx.derived
     lim_hot, lim_cold = b.stall_time(b.lr_high, "hot"), b.stall_time(b.lr_high, "cold")
     d["thermal_trip_time_locked_rotor_hot"] = Setting(
         t_hot if math.isfinite(t_hot) else None, "s", "derived", label="49 operate time at I_LR from hot",
-        note=f"{t_hot / lim_hot:.0%} of the hot stall limit {lim_hot:.3g} s")
+        note=_share_of_limit(t_hot, lim_hot, "hot"))
     d["thermal_trip_time_locked_rotor_cold"] = Setting(
         t_cold if math.isfinite(t_cold) else None, "s", "derived", label="49 operate time at I_LR from cold",
-        note=f"{t_cold / lim_cold:.0%} of the cold stall limit {lim_cold:.3g} s")
+        note=_share_of_limit(t_cold, lim_cold, "cold"))
     if b.start_min.accelerates:
         _, end_c = replica_through_start(b.start_min, pickup, tau, 0.0)
         d["thermal_capacity_per_start"] = Setting(end_c, "pu", "derived",
