@@ -310,3 +310,16 @@ def test_nothing_printed_acts_on_the_terminal(tmp_path):
     r = run_cli("batch", str(src), "-o", str(out), "--workers", "1", env={"COLUMNS": "250"})
     assert r.returncode in (0, 1) and not any(ch in r.stdout + r.stderr for ch in "\x1b\x07\u202e")
     assert "\\x1b]0;owned\\x07" in r.stdout
+
+
+def test_the_paths_written_are_printed_escaped(tmp_path):
+    # issue 15: a path with ESC, BEL or U+202E in it is printed escaped by every command that writes a file
+    evil = "\x1b]0;owned\x07\u202e"
+    sheet = tmp_path / f"s{evil}.pdf"
+    r = run_cli("sheet", str(MOTOR), "-o", str(sheet))
+    assert r.returncode in (0, 1) and sheet.is_file()
+    assert not any(ch in r.stdout + r.stderr for ch in "\x1b\x07\u202e") and "\\x1b]0;owned" in r.stdout
+    folder = tmp_path / f"c{evil}"
+    r = run_cli("comtrade", str(MOTOR), "-o", str(folder))
+    assert r.returncode in (0, 1) and folder.is_dir()
+    assert not any(ch in r.stdout + r.stderr for ch in "\x1b\x07\u202e") and "\\x1b]0;owned" in r.stdout

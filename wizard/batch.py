@@ -553,8 +553,11 @@ def _say_interrupted(done: int, total: int, output: Path) -> None:
     from rich.console import Console
     from rich.text import Text
 
+    from machines.errors import printable
+
     Console(stderr=True, highlight=False).print(Text(
-        f"stopped: {done} of {total} machine files were done; their sheets and records in {output} are complete, "
+        f"stopped: {done} of {total} machine files were done; their sheets and records in {printable(output)} are "
+        "complete, "
         "nothing else was written or changed (the index was not updated)"))
 
 

@@ -13,6 +13,7 @@ import sys
 from pathlib import Path
 
 from machines.errors import InputError
+from wizard.terminal import shown
 
 PLAN_NAME = "test-plan.csv"
 
@@ -68,15 +69,15 @@ def make_comtrade(file: Path, output: Path | None = None, force: bool = False, d
         write_atomic(folder / f"{d.stem}.cfg", comtrade.cfg_text(rec))
         write_atomic(folder / f"{d.stem}.hdr", waveforms.header_text(d, record))
     write_atomic(folder / PLAN_NAME, plan_csv(entries, system.frequency))
-    print(folder)
+    print(shown(folder))
     print(f"{len(designs)} COMTRADE recording(s) and {PLAN_NAME} ({len(entries)} test points)")
     refused = [e for e in entries if e.skip is not None and e.skip.kind == "record"]
     for e in entries:
         if e.skip is not None and e.skip.kind != "none":
             label = "warning" if e.skip.kind == "record" else "note"
-            print(f"{label}: test {e.tp.get('id')}: no waveform: {e.skip.reason}", file=sys.stderr)
+            print(shown(f"{label}: test {e.tp.get('id')}: no waveform: {e.skip.reason}"), file=sys.stderr)
     for n in notes:
-        print(f"warning: {n}", file=sys.stderr)
+        print(shown(f"warning: {n}"), file=sys.stderr)
     failed = sum(1 for f in record["functions"] for c in f["checks"] if c["status"] == "fail") + sum(
         1 for c in record["checks"] if c["status"] == "fail")
     if failed:

@@ -19,6 +19,7 @@ import sys
 from pathlib import Path
 
 from machines.errors import InputError
+from wizard.terminal import shown
 
 PASSWORD_ENV = "RELAYWRIGHT_SIGN_PASSWORD"
 
@@ -51,8 +52,8 @@ def _warn_missing_glyphs(record) -> None:
     for key in ("tag", "description", "site", "prepared_by", "checked_by", "approved_by"):
         chars = missing_glyphs(str((record.sheet or {}).get(key) or ""))
         if chars:
-            print(f"warning: sheet.{key}: no font here has the character(s) {' '.join(chars)}; they print as "
-                  "empty boxes", file=sys.stderr)
+            print(shown(f"warning: sheet.{key}: no font here has the character(s) {' '.join(chars)}; they print as "
+                        "empty boxes"), file=sys.stderr)
 
 
 def make_sheet(file: Path, output: Path | None = None, page_size: str | None = None, sign: Path | None = None) -> int:
@@ -92,7 +93,7 @@ def make_sheet(file: Path, output: Path | None = None, page_size: str | None = N
     refuse_to_replace_signed(target, pdf)
     refuse_to_replace_issued(target, pdf)
     write_atomic(target, pdf)
-    print(target)
+    print(shown(target))
     failed = sum(1 for _, c in record.all_checks() if c.status == "fail")
     if failed:
         print(f"{failed} check(s) failed: see the findings on the sheet; do not apply these settings as they are",
@@ -118,7 +119,7 @@ def previous_changes(file: Path, case, record):
         old_case, old_warnings = load_case(previous)
         old_record = run_study(old_case, old_warnings)
     except InputError as e:
-        print(f"warning: {previous}: the previous revision cannot be studied ({e}); changes are not marked",
+        print(shown(f"warning: {previous}: the previous revision cannot be studied ({e}); changes are not marked"),
               file=sys.stderr)
         return None, None
     return compare(old_case, old_record, case, record), old_case.sheet.revision

@@ -54,13 +54,26 @@ def wrap(text: str, width: int | None = None, indent: str | None = None) -> list
     return out
 
 
+def shown(text: object) -> str:
+    """``text`` with every character a terminal would act on escaped (ESC, BEL, NUL, bidirectional overrides),
+    line breaks kept: what is printed is what was written, never a command to the terminal.
+
+    >>> shown("P-101\\x1b[2J\\nnext")
+    'P-101\\\\x1b[2J\\nnext'
+    """
+    from machines.errors import printable
+
+    return "\n".join(printable(line) for line in str(text).split("\n"))
+
+
 def say(text: str = "", wrap_it: bool = True, file=None) -> None:
-    """Print ``text`` wrapped to the terminal (``wrap_it=False``: as it is, e.g. a command to copy)."""
+    """Print ``text`` wrapped to the terminal (``wrap_it=False``: as it is, e.g. a command to copy), control
+    characters escaped."""
     stream = file or sys.stdout
     if not wrap_it:
-        print(text, file=stream, flush=True)
+        print(shown(text), file=stream, flush=True)
         return
-    print("\n".join(wrap(text)), file=stream, flush=True)
+    print("\n".join(wrap(shown(text))), file=stream, flush=True)
 
 
 def for_stream(text: str, stream) -> str:
@@ -69,4 +82,4 @@ def for_stream(text: str, stream) -> str:
         tty = stream.isatty()
     except (AttributeError, ValueError):
         tty = False
-    return "\n".join(wrap(text)) if tty else text
+    return "\n".join(wrap(shown(text))) if tty else shown(text)
