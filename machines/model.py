@@ -816,6 +816,38 @@ def motor_rated_current(m: InductionMotor) -> float:
 # ---------------------------------------------------------------------------------------------------- validation
 
 
+def motor_current_error(output: float, voltage: float, current: float, computed: float) -> InputError | None:
+    """Why a motor's nameplate current cannot be right for its output and voltage, or None.
+
+    The electrical input √3·V·I·cos φ·η is the shaft output: with cos φ ≤ 1 and η ≤ 1 the current is at least
+    P/(√3·V) (2 % left for rounding on the nameplate); more than twice the current computed with the file's own
+    efficiency and power factor contradicts them (METHODS.md §14). The file reader and the wizard use this one rule.
+    """
+    least = output / (math.sqrt(3.0) * voltage)
+    if current < 0.98 * least:
+        return InputError("machine.rated_current",
+                          f"expected at least {least:.4g} A, the current {output / 1e3:.4g} kW needs at "
+                          f"{voltage / 1e3:.4g} kV with a power factor and efficiency of 1, got {current:.4g} A")
+    if current > 2.0 * computed:
+        return InputError("machine.rated_current",
+                          f"expected near {computed:.4g} A, computed from output, voltage, efficiency and power "
+                          f"factor (more than twice that contradicts them), got {current:.4g} A")
+    return None
+
+
+def ct_primary_error(key: str, rated_current: float, ct: Ratio) -> InputError | None:
+    """Why a CT cannot carry the machine's rated current, or None: no CT carries more than
+    :data:`CT_MAX_RATING_FACTOR` times its rating continuously (IEEE C57.13 thermal rating factor). The file reader
+    and the wizard use this one rule."""
+    if rated_current <= CT_MAX_RATING_FACTOR * ct.primary:
+        return None
+    return InputError(f"instruments.{key}",
+                      f"expected a CT primary of at least {rated_current / CT_MAX_RATING_FACTOR:.4g} A: the "
+                      f"machine's rated current {rated_current:.4g} A is {rated_current / ct.primary:.3g} times the "
+                      f"{ct.primary:g} A primary, and no CT carries more than {CT_MAX_RATING_FACTOR:g} times "
+                      "its rating continuously (IEEE C57.13 thermal rating factor)")
+
+
 def motor_speed_error(frequency: float, rated_speed: float) -> InputError | None:
     """Why an induction motor's full-load speed cannot be right at this frequency, or None.
 
@@ -959,12 +991,9 @@ def _validate_instruments(case: MachineCase) -> list[str]:
     i_rated = machine_rated_current(m)
     for key in ("phase_ct", "differential_ct"):
         ct: Ratio | None = getattr(ins, key)
-        if ct is not None and i_rated > CT_MAX_RATING_FACTOR * ct.primary:
-            raise InputError(f"instruments.{key}",
-                             f"expected a CT primary of at least {i_rated / CT_MAX_RATING_FACTOR:.4g} A: the "
-                             f"machine's rated current {i_rated:.4g} A is {i_rated / ct.primary:.3g} times the "
-                             f"{ct.primary:g} A primary, and no CT carries more than {CT_MAX_RATING_FACTOR:g} times "
-                             "its rating continuously (IEEE C57.13 thermal rating factor)")
+        error = None if ct is None else ct_primary_error(key, i_rated, ct)
+        if error is not None:
+            raise error
     v_ll = case.supply.nominal_voltage
     if ins.vt is not None:
         shares = (v_ll / ins.vt.primary, v_ll / math.sqrt(3.0) / ins.vt.primary)  # line-to-line, line-to-neutral
@@ -1074,21 +1103,9 @@ def _validate_motor(m: InductionMotor) -> list[str]:
     warnings = []
     computed = rated_current_from_output(m.rated_output, m.rated_voltage, m.efficiency, m.power_factor)
     if m.rated_current:
-        # the electrical input √3·V·I·cos φ·η is the shaft output: with cos φ ≤ 1 and η ≤ 1 the current is at
-        # least P/(√3·V) (2 % left for rounding on the nameplate)
-        least = m.rated_output / (math.sqrt(3.0) * m.rated_voltage)
-        if m.rated_current < 0.98 * least:
-            raise InputError(
-                "machine.rated_current",
-                f"expected at least {least:.4g} A, the current {m.rated_output / 1e3:.4g} kW needs at "
-                f"{m.rated_voltage / 1e3:.4g} kV with a power factor and efficiency of 1, got {m.rated_current:.4g} A",
-            )
-        if m.rated_current > 2.0 * computed:
-            raise InputError(
-                "machine.rated_current",
-                f"expected near {computed:.4g} A, computed from output, voltage, efficiency and power factor (more "
-                f"than twice that contradicts them), got {m.rated_current:.4g} A",
-            )
+        error = motor_current_error(m.rated_output, m.rated_voltage, m.rated_current, computed)
+        if error is not None:
+            raise error
         dev = m.rated_current / computed - 1.0
         if abs(dev) > 0.10:
             warnings.append(

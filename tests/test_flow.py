@@ -191,6 +191,24 @@ def test_rated_current_far_from_the_computed_one_is_a_warning():
     assert flow.findings(flow.find("machine.rated_current", a), a) == []
 
 
+def test_what_the_file_reader_refuses_is_refused_at_the_question():
+    # the wizard and the file reader share one rule (machines.model.motor_current_error, ct_primary_error): an
+    # answer the file would refuse is refused at once, not offered to keep
+    a = answers(machine={**MOTOR, "rated_output": "373 kW", "rated_voltage": "4160 V", "efficiency": "0.95",
+                         "power_factor": "0.88"})
+    q = flow.find("machine.rated_current", a)
+    # 61.92 A computed; more than twice that contradicts the file's own efficiency and power factor
+    assert flow.refusal(q, a, "130 A").startswith("machine.rated_current: expected near 61.92 A")
+    # less than P/(√3·V) = 51.77 A needs cos φ·η above 1
+    assert flow.refusal(q, a, "50 A").startswith("machine.rated_current: expected at least 51.77 A")
+    assert flow.refusal(q, a, "68 A") is None
+    a.set("machine.rated_current", "62 A")
+    q = flow.find("instruments.phase_ct", a)
+    # IEEE C57.13: a CT carries at most 4 times its rating continuously (thermal rating factor ≤ 4.0)
+    assert flow.refusal(q, a, "15/1 A").startswith("instruments.phase_ct: expected a CT primary of at least 15.5 A")
+    assert flow.refusal(q, a, "75/1 A") is None
+
+
 def test_hot_stall_longer_than_cold_is_refused_at_once():
     a = answers(machine={**MOTOR, "safe_stall_time_cold": "15 s"})
     q = flow.find("machine.safe_stall_time_hot", a)
@@ -421,3 +439,13 @@ def test_going_back_reopens_the_last_answer_that_applies():
     assert flow.go_back(a, "sheet.site").key == "sheet.description"
     assert flow.next_question(a).key == "sheet.description" and a.get("sheet.description") == "pump"
     assert flow.go_back(Answers(), "machine.kind") is None
+
+
+def test_a_blank_minimum_starting_voltage_says_what_the_study_assumes():
+    # issue 10: without the specified starting voltage the study starts the motor at no more than 0.85 pu
+    # (common practice, no published source); the wizard says so, not "computed from the fault level"
+    from machines.protection.motor_basis import DEFAULT_MINIMUM_STARTING_VOLTAGE
+
+    q = next(q for q in flow.QUESTIONS if q.key == "supply.minimum_starting_voltage")
+    meaning = flow.blank_meaning(q, Answers())
+    assert f"{DEFAULT_MINIMUM_STARTING_VOLTAGE:.2f} pu" in meaning

@@ -433,8 +433,11 @@ def test_66_wait_from_cooling():
     f = rec.function("66")
     heat = rec.derived["start_heat_fraction"].value
     hot = 1 - 14 / 20
-    assert f.settings["minimum_time_between_starts"].value == pytest.approx(7200.0 * math.log((hot + heat) / hot),
-                                                                            abs=0.01)
+    exact = 7200.0 * math.log((hot + heat) / hot)
+    # rounded up to the relay's time-constant step (a restart inhibit is set beside the replica's constants),
+    # never shorter than the need
+    wait = f.settings["minimum_time_between_starts"]
+    assert exact <= wait.value < exact + wait.step
     assert "standstill cooling" in f.basis and "120 min" in f.basis
 
 

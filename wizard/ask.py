@@ -201,7 +201,10 @@ def select(message: str, options: list[tuple[str, str]], default: str | None = N
     instruction = "(↑↓ Enter · < back · ? help)"
     choices = [questionary.Choice(title=_fold(label), value=value) for value, label in options]
     values = [value for value, _ in options]
-    question = questionary.select(_fit(message, instruction, room=0), choices=choices,
+    # the answer is echoed after the question once chosen: when the longest entry would not fit beside it, the
+    # question ends with a line break so that the echo starts a line of its own (never folded inside a word)
+    longest = max((len(c.title.split("\n")[0]) for c in choices), default=0)
+    question = questionary.select(_fit(message, "", room=max(len(instruction), longest + 1)), choices=choices,
                                   default=default if default in values else None, qmark="›",
                                   instruction=instruction, style=style())
     return _run(question, menu=True)

@@ -22,8 +22,9 @@ from typing import Any, Callable
 
 from machines.errors import InputError
 from machines.files import FORMAT, MACHINE_KINDS, parse_value, section_specs
-from machines.model import (FieldSpec, HistoryEntry, field_specs, generator_poles, generator_rated_current,
-                            generator_speed_error, motor_speed_error, rated_current_from_output)
+from machines.model import (FieldSpec, HistoryEntry, ct_primary_error, field_specs, generator_poles,
+                            generator_rated_current, generator_speed_error, motor_current_error, motor_speed_error,
+                            rated_current_from_output)
 from machines.units import (KINDS, convert, parse_date, parse_fault_level, parse_quantity, rise_note, same_unit,
                             written_unit)
 
@@ -351,6 +352,9 @@ def check_rated_current(a: Answers) -> Finding | None:
     computed = computed_rated_current(a)
     if given is None or computed is None:
         return None
+    error = motor_current_error(a.si("machine.rated_output"), a.si("machine.rated_voltage"), given, computed)
+    if error is not None:  # what the machine file reader refuses is refused here, by the same rule
+        return Finding("error", str(error))
     dev = given / computed - 1.0
     # the machine file reader warns beyond the same ±10 % (machines.model.validate_case)
     if abs(dev) > 0.10:
@@ -467,6 +471,9 @@ def check_phase_ct(a: Answers) -> Finding | None:
         flc = None if s_rated is None or v_rated is None else generator_rated_current(s_rated, v_rated)
     if not flc:
         return None
+    error = ct_primary_error("phase_ct", flc, ct)
+    if error is not None:  # what the machine file reader refuses is refused here, by the same rule
+        return Finding("error", str(error))
     share = flc / ct.primary
     ratio = f"{_number(ct.primary)}/{_number(ct.secondary)} A"
     if share > RATIO_HIGH:
@@ -791,7 +798,8 @@ QUESTIONS: tuple[Question, ...] = (
     Question("supply.x_over_r", "X/R ratio at the bus", "X/R", "supply"),
     Question("supply.minimum_starting_voltage", "Lowest bus voltage at which the motor must still start",
              "Lowest starting voltage", "supply", when=M, help="pu of nominal, e.g. 0.85 pu",
-             blank=constant("computed from the fault level and the starting current")),
+             blank=constant("the study assumes 0.85 pu, the usual specification, or less where the weakest "
+                            "source gives less")),
     Question("supply.voltage_before_start", "Bus voltage just before a start", "Voltage before a start", "supply",
              when=lambda a: is_motor(a) and (a.has("supply.fault_level") or a.has("supply.source_impedance")),
              help="pu of nominal, e.g. 0.95 pu; with the minimum fault level it gives the starting voltage"),

@@ -86,7 +86,9 @@ def settings(ctx: StudyContext) -> FunctionSettings:
     # ---- what the relay holds
     n_cold, src_c = ctx.choose(FID, "starts_cold", n_cold0, "integer", "", src_c)
     n_hot, src_h = ctx.choose(FID, "starts_hot", n_hot0, "integer", "", src_h)
-    t_between, t_src = ctx.choose(FID, "minimum_time_between_starts", t0, "time", "s", t0_src, rounding="up")
+    # a restart inhibit is set in minutes, on the time-constant step (relays hold it beside the replica's constants)
+    t_between, t_src = ctx.choose(FID, "minimum_time_between_starts", t0, "time", "s", t0_src, rounding="up",
+                                  step_kind="time_constant")
 
     if not math.isfinite(d_theta):
         checks.append(Check("warn", "The start at the minimum voltage is not bounded: the start count cannot be "
