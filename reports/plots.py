@@ -577,14 +577,18 @@ def _sample(path: list[tuple[float, float]], n: int) -> list[tuple[float, float]
     return along(path, [(k + 0.5) / n for k in range(n)])
 
 
-def _distance_to(p, segments) -> float:
-    best = math.inf
-    for (ax, ay), (bx, by) in segments:
-        dx, dy = bx - ax, by - ay
-        L = dx * dx + dy * dy
-        u = 0.0 if L == 0 else max(0.0, min(1.0, ((p[0] - ax) * dx + (p[1] - ay) * dy) / L))
-        best = min(best, math.hypot(ax + u * dx - p[0], ay + u * dy - p[1]))
-    return best
+def _distances_to(points, segments):
+    """The distance of each point to the nearest of the segments ((ax, ay), (bx, by)), as a numpy array."""
+    import numpy as np
+
+    p = np.asarray(points, dtype=float)[:, None, :]
+    seg = np.asarray(segments, dtype=float)
+    a, d = seg[:, 0, :], seg[:, 1, :] - seg[:, 0, :]
+    length2 = np.einsum("ij,ij->i", d, d)
+    along_ = np.einsum("nmj,mj->nm", p - a, d) / np.where(length2 == 0.0, 1.0, length2)
+    u = np.clip(np.where(length2 == 0.0, 0.0, along_), 0.0, 1.0)
+    nearest = a + u[:, :, None] * d
+    return np.sqrt(((nearest - p) ** 2).sum(axis=2)).min(axis=1)
 
 
 def _coincidences(points, axes: Axes, all_pens) -> dict[int, int]:
@@ -613,7 +617,7 @@ def _coincidences(points, axes: Axes, all_pens) -> dict[int, int]:
             segs = [(p, q) for piece in paths[a] for p, q in zip(piece, piece[1:])]
             if len(segs) > 80:
                 segs = segs[::math.ceil(len(segs) / 80)] + [segs[-1]]
-            close = sum(1 for p in samples if _distance_to(p, segs) <= _COINCIDE_PT)
+            close = int((_distances_to(samples, segs) <= _COINCIDE_PT).sum()) if samples else 0
             if samples and close >= 0.8 * len(samples):
                 found[b] = a
                 break
