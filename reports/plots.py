@@ -113,6 +113,10 @@ def clip_polyline(points: list[tuple[float, float]], axes: Axes) -> list[list[tu
     if None in box:
         return []
     bx0, bx1, by0, by1 = box
+    inside = [(float(x), float(y)) for x, y in points]
+    fx, fy = [_fwd(x, axes.log_x) for x, _ in inside], [_fwd(y, axes.log_y) for _, y in inside]
+    if all(v is not None and bx0 <= v <= bx1 for v in fx) and all(v is not None and by0 <= v <= by1 for v in fy):
+        return [inside] if inside else []  # the whole line lies in the box: nothing to clip
     pieces: list[list[tuple[float, float]]] = []
     current: list[tuple[float, float]] = []
     prev = None

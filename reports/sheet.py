@@ -133,15 +133,22 @@ def _c(text: object, style: str = "cell", study: bool = False) -> _Cell:
 
 def _one_line(cell: _Cell, width: float) -> bool:
     """True when a cell can be drawn as a plain string: one line in the sheet font, no formula to set."""
+    return _plain_width(cell.text, cell.style, cell.study) <= width - 2 * _PAD
+
+
+@lru_cache(maxsize=8192)
+def _plain_width(text: str, style: str, study: bool) -> float:
+    """The width [pt] of ``text`` set as a plain string in ``style``; infinite when it cannot be one (a line break,
+    a character of the fallback font, a formula or key to set). Cells repeat across a sheet and a batch (sources,
+    outputs, units), so the answer is kept."""
     from reportlab.pdfbase.pdfmetrics import stringWidth
 
-    text = cell.text
     if "\n" in text or not in_main_font(text):
-        return False
-    if cell.study and (formula(text) != markup(text) or tables.readable_keys(text) != text):
-        return False
-    st = STYLES[cell.style]
-    return stringWidth(text, st["fontName"], st["fontSize"]) <= width - 2 * _PAD
+        return float("inf")
+    if study and (formula(text) != markup(text) or tables.readable_keys(text) != text):
+        return float("inf")
+    st = STYLES[style]
+    return stringWidth(text, st["fontName"], st["fontSize"])
 
 
 def _table(rows, widths, cmds=(), repeat: int = 0) -> dict:

@@ -618,6 +618,11 @@ def _run_pool(tasks: list[Task], n: int, done, job=process_machine) -> None:
             held[conn][1] = None
             pending.append(task)
             lost(conn)
+            return
+        # the next tasks are validated now, while the workers draw, so that a worker that finishes is given its
+        # next task at once
+        for k in range(1, min(n, len(pending)) + 1):
+            pending[-k] = validated(pending[-k])
 
     def _stop(conn) -> None:
         proc, _ = held.pop(conn)
