@@ -301,44 +301,76 @@ def _residuals(lp: np.ndarray, data: tuple[float, ...], target: float | None, gr
 _DAMPING_TRIALS = np.array([1.0 / 3.0, 1.0, 4.0, 32.0, 1024.0])
 
 
-def _levenberg_marquardt(lp: np.ndarray, fun) -> tuple[np.ndarray, np.ndarray]:
-    """Damped Gauss–Newton on ``fun`` (rows of parameters → rows of residuals) from ``lp``: a forward-difference
-    Jacobian in one batched call, then the steps of several damping factors in another, the best kept; steps
-    limited to ±1 in each log-parameter; at most :data:`MAX_ITERATIONS`."""
+def _levenberg_marquardt(starts: list[np.ndarray], fun) -> list[tuple[np.ndarray, np.ndarray]]:
+    """Damped Gauss–Newton on ``fun`` (rows of parameters → rows of residuals) from each of ``starts``: a
+    forward-difference Jacobian, then the steps of several damping factors, the best kept; steps limited to ±1 in
+    each log-parameter; at most :data:`MAX_ITERATIONS`. Returns (parameters, residuals) per start.
+
+    The runs are independent; they go in step so that each iteration evaluates ``fun`` once for the Jacobians of
+    every run still going and once for all their trial steps (``fun`` treats rows independently)."""
     lo, hi = math.log(BOUNDS[0]), math.log(BOUNDS[1])
     h = 1e-6
-    eye = np.eye(lp.size) * h
-    lam = 1e-3
-    rows = fun(np.vstack((lp, lp + eye)))
+    n = starts[0].size if starts else 0
+    eye = np.eye(n) * h
+    lps = list(starts)
+    lams = [1e-3] * len(lps)
+    rows = _split(fun(np.vstack([np.vstack((lp, lp + eye)) for lp in lps])), n + 1) if lps else []
+    going = list(range(len(lps)))
     for _ in range(MAX_ITERATIONS):
-        f = rows[0]
-        cost = f @ f
-        if not cost > 1e-18:
+        tries = []  # (run, its cost, its trial steps)
+        for i in going:
+            f = rows[i][0]
+            cost = f @ f
+            if not cost > 1e-18:
+                continue
+            jac = ((rows[i][1:] - f) / h).T
+            a, g = jac.T @ jac, jac.T @ f
+            tries.append((i, cost, np.clip(lps[i] + np.clip(_damped_steps(a, g, lams[i]), -1.0, 1.0), lo, hi)))
+        if not tries:
             break
-        jac = ((rows[1:] - f) / h).T
-        a, g = jac.T @ jac, jac.T @ f
-        scale = np.diag(np.diag(a) + 1e-12)
-        steps = []
-        for k in lam * _DAMPING_TRIALS:
+        results = _split(fun(np.vstack([t for *_, t in tries])), len(_DAMPING_TRIALS))
+        going, moved = [], []
+        for (i, cost, trials), ft in zip(tries, results):
+            costs = np.where(np.all(np.isfinite(ft), axis=1), np.einsum("ij,ij->i", ft, ft), np.inf)
+            j = int(np.argmin(costs))
+            if not costs[j] < cost:
+                lams[i] *= 1e4
+                if not lams[i] > 1e8:
+                    going.append(i)
+                continue
+            lams[i] = max(lams[i] * _DAMPING_TRIALS[j], 1e-9)
+            lps[i] = trials[j]
+            moved.append((i, cost - costs[j] < STALLED * cost))
+        if moved:
+            fresh = _split(fun(np.vstack([np.vstack((lps[i], lps[i] + eye)) for i, _ in moved])), n + 1)
+            for (i, stalled), r in zip(moved, fresh):
+                rows[i] = r
+                if not stalled:
+                    going.append(i)
+        going.sort()
+    return [(lp, r[0]) for lp, r in zip(lps, rows)]
+
+
+def _damped_steps(a: np.ndarray, g: np.ndarray, lam: float) -> np.ndarray:
+    """The Levenberg–Marquardt steps −(A + k·diag A)⁻¹·g for each damping factor k of ``lam`` × the trials (a row
+    each; a zero step where the damped matrix is singular)."""
+    scale = np.diag(np.diag(a) + 1e-12)
+    damped = a + (lam * _DAMPING_TRIALS)[:, None, None] * scale
+    try:
+        return -np.linalg.solve(damped, g[None, :, None])[..., 0]
+    except np.linalg.LinAlgError:  # one of them singular: each on its own
+        steps = np.zeros((len(_DAMPING_TRIALS), g.size))
+        for row, m in enumerate(damped):
             try:
-                steps.append(-np.linalg.solve(a + k * scale, g))
+                steps[row] = -np.linalg.solve(m, g)
             except np.linalg.LinAlgError:
-                steps.append(np.zeros_like(lp))
-        trials = np.clip(lp + np.clip(np.array(steps), -1.0, 1.0), lo, hi)
-        ft = fun(trials)
-        costs = np.where(np.all(np.isfinite(ft), axis=1), np.einsum("ij,ij->i", ft, ft), np.inf)
-        j = int(np.argmin(costs))
-        if not costs[j] < cost:
-            lam *= 1e4
-            if lam > 1e8:
-                break
-            continue
-        lam = max(lam * _DAMPING_TRIALS[j], 1e-9)
-        lp = trials[j]
-        rows = fun(np.vstack((lp, lp + eye)))
-        if cost - costs[j] < STALLED * cost:
-            break
-    return lp, rows[0]
+                pass
+        return steps
+
+
+def _split(rows: np.ndarray, size: int) -> list[np.ndarray]:
+    """``rows`` cut into consecutive blocks of ``size`` rows."""
+    return [rows[k:k + size] for k in range(0, rows.shape[0], size)]
 
 
 def _initial_guesses(data: tuple[float, ...]) -> list[np.ndarray]:
@@ -436,19 +468,23 @@ def fit_double_cage(rated_slip: float, power_factor: float, efficiency: float, l
         guess = _initial_guesses(data)[0]
         starts = [np.log(free.parameters)] + [np.concatenate((guess[:3], np.log([r2, x2]), guess[5:6], [math.log(x3)],
                                                               guess[7:])) for r2, x2, x3 in DIP_STARTS]
-    best, best_cost, tried = None, math.inf, 0
-    for lp0 in starts:
-        if not np.all(np.isfinite(fun(lp0[None, :]))):
-            continue
-        lp, f = _levenberg_marquardt(lp0, fun)
-        core = f[:n_eq]
-        cost = float(core @ core)
-        again = best is not None and abs(cost - best_cost) <= AGREE * best_cost  # the same least-squares optimum
-        if cost < best_cost:
-            best, best_cost = (lp, core), cost
-        tried += 1
-        worst = np.abs(best[1]).max()
-        if worst < SOLVED or (tried >= ANALYTIC_STARTS and (again or worst <= CONVERGED)):
+    starts = [lp0 for lp0, f0 in zip(starts, fun(np.vstack(starts))) if np.all(np.isfinite(f0))]
+    best, best_cost, tried, done = None, math.inf, 0, False
+    # the starts run four at a time (one evaluation of the equations serves all four) and are judged one by one, in
+    # order, as if they had run in turn
+    for k in range(0, len(starts), ANALYTIC_STARTS):
+        for lp, f in _levenberg_marquardt(starts[k:k + ANALYTIC_STARTS], fun):
+            core = f[:n_eq]
+            cost = float(core @ core)
+            again = best is not None and abs(cost - best_cost) <= AGREE * best_cost  # the same optimum
+            if cost < best_cost:
+                best, best_cost = (lp, core), cost
+            tried += 1
+            worst = np.abs(best[1]).max()
+            done = worst < SOLVED or (tried >= ANALYTIC_STARTS and (again or worst <= CONVERGED))
+            if done:
+                break
+        if done:
             break
     lp, core = best
     p = np.exp(lp)
