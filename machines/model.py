@@ -13,13 +13,14 @@ key; merely suspicious data come back as warnings.
 from __future__ import annotations
 
 import math
-from dataclasses import dataclass, field, fields
+from dataclasses import field, fields
 from typing import Any, Literal
 
 from machines.errors import InputError, one_line
+from machines.frozen import frozen
 
 
-@dataclass(frozen=True)
+@frozen
 class FieldSpec:
     """How a machine-file key is written and checked.
 
@@ -75,7 +76,7 @@ def field_specs(cls) -> dict[str, FieldSpec]:
 # ---------------------------------------------------------------------------------------------------- parts
 
 
-@dataclass(frozen=True)
+@frozen
 class Ratio:
     """An instrument-transformer ratio, e.g. 200/1 A or 6600/110 V: primary and secondary [A or V]."""
 
@@ -91,7 +92,7 @@ class Ratio:
         return value / self.factor
 
 
-@dataclass(frozen=True)
+@frozen
 class HistoryEntry:
     """One line of the revision history: who changed what, when and why."""
 
@@ -107,7 +108,7 @@ class HistoryEntry:
 SHEET_STATUSES = ("draft", "checked", "approved", "issued")
 
 
-@dataclass(frozen=True)
+@frozen
 class SheetInfo:
     """Identification and sign-off data printed on the sheet."""
 
@@ -144,7 +145,7 @@ class SheetInfo:
     )
 
 
-@dataclass(frozen=True)
+@frozen
 class StudyOptions:
     """Choices that steer the study."""
 
@@ -156,7 +157,7 @@ class StudyOptions:
     )
 
 
-@dataclass(frozen=True)
+@frozen
 class RelaySteps:
     """The setting steps of the relay that will hold the settings: every setting is rounded to one of these.
 
@@ -186,7 +187,7 @@ class RelaySteps:
                             help="step of time dials and time multipliers")
 
 
-@dataclass(frozen=True)
+@frozen
 class FrequencyBand:
     """A maker's off-frequency band: from ``low`` to ``high`` [Hz], ``allowed`` accumulated time [s]."""
 
@@ -208,7 +209,7 @@ class FrequencyBand:
     )
 
 
-@dataclass(frozen=True)
+@frozen
 class FrequencyStage:
     """A load-shedding or trip stage: ``frequency`` [Hz] for ``time_delay`` [s]."""
 
@@ -220,7 +221,7 @@ class FrequencyStage:
     )
 
 
-@dataclass(frozen=True)
+@frozen
 class CapabilityPoint:
     """A point of the underexcited (leading) side of a P-Q diagram: at ``active_power`` the machine absorbs at most
     ``reactive_absorbed`` [both pu of the rated apparent power, at rated voltage]."""
@@ -235,7 +236,7 @@ class CapabilityPoint:
     )
 
 
-@dataclass(frozen=True)
+@frozen
 class RideThroughBand:
     """A band of the system's frequency ride-through requirement: with the frequency from ``low`` to ``high`` [Hz]
     the unit must stay connected for at least ``minimum_time`` [s]."""
@@ -252,7 +253,7 @@ class RideThroughBand:
     )
 
 
-@dataclass(frozen=True)
+@frozen
 class SpeedCurve:
     """The maker's torque- and current-speed curve at rated voltage: ``speed`` [pu of synchronous speed, rising],
     ``torque`` [pu of rated torque], ``current`` [pu of full-load current] (optional), one entry per point."""
@@ -265,7 +266,7 @@ class SpeedCurve:
                                       help="pu of full-load current at each speed")
 
 
-@dataclass(frozen=True)
+@frozen
 class ThermalLimit:
     """One IEEE Std 620 thermal-limit curve of a motor: ``points`` are (current [A], allowed time [s]) pairs."""
 
@@ -280,7 +281,7 @@ class ThermalLimit:
         help="(current, time) pairs, current in pu of FLC or A, e.g. [[\"2 pu\", \"330 s\"]]")
 
 
-@dataclass(frozen=True)
+@frozen
 class FuseCurve:
     """A power fuse of a fused contactor: its rating [A] and its minimum melting curve (current [A], time [s])."""
 
@@ -294,7 +295,7 @@ class FuseCurve:
 # ---------------------------------------------------------------------------------------------------- machines
 
 
-@dataclass(frozen=True)
+@frozen
 class InductionMotor:
     """A three-phase induction motor's nameplate and maker's data [SI]."""
 
@@ -407,7 +408,7 @@ class InductionMotor:
     )
 
 
-@dataclass(frozen=True)
+@frozen
 class SynchronousGenerator:
     """A synchronous generator's nameplate and maker's data [SI; reactances pu on the machine's base]."""
 
@@ -518,7 +519,7 @@ class SynchronousGenerator:
 # ---------------------------------------------------------------------------------------------------- system
 
 
-@dataclass(frozen=True)
+@frozen
 class MotorLoad:
     """The driven load of a motor."""
 
@@ -564,7 +565,7 @@ class MotorLoad:
     )
 
 
-@dataclass(frozen=True)
+@frozen
 class Supply:
     """The supply to the machine and its switching device."""
 
@@ -649,7 +650,7 @@ class Supply:
     )
 
 
-@dataclass(frozen=True)
+@frozen
 class Grounding:
     """How the system neutral is grounded and what that means for earth faults."""
 
@@ -685,7 +686,7 @@ class Grounding:
     )
 
 
-@dataclass(frozen=True)
+@frozen
 class Instruments:
     """Instrument transformers."""
 
@@ -713,7 +714,7 @@ class Instruments:
 Machine = InductionMotor | SynchronousGenerator
 
 
-@dataclass(frozen=True)
+@frozen
 class MachineCase:
     """Everything one machine file says, validated.
 

@@ -16,10 +16,11 @@ import dataclasses
 import hashlib
 import json
 import math
-from dataclasses import dataclass, field
+from dataclasses import field
 from typing import Any, Literal
 
 from machines.errors import UNSAFE
+from machines.frozen import mutable
 
 FORMAT = "relaywright.settings/1"
 
@@ -27,7 +28,7 @@ Source = Literal["standard", "common-practice", "maker-data", "entered", "overri
 Status = Literal["ok", "warn", "fail"]
 
 
-@dataclass
+@mutable
 class Setting:
     """One setting or derived value: primary value and unit, relay-side value where a CT/VT applies.
 
@@ -66,7 +67,7 @@ class Setting:
         return out
 
 
-@dataclass
+@mutable
 class Check:
     """A finding: ``ok``, ``warn`` or ``fail`` with a sentence a practitioner understands."""
 
@@ -77,7 +78,7 @@ class Check:
         return {"status": self.status, "message": self.message}
 
 
-@dataclass
+@mutable
 class TestPoint:
     """A commissioning injection: apply ``applied`` (secondary units when ``secondary``) and expect a time.
 
@@ -128,7 +129,7 @@ class TestPoint:
         return {k: _clean(v) for k, v in dataclasses.asdict(self).items()}
 
 
-@dataclass
+@mutable
 class Series:
     """A polyline or point set of a drawing, in the drawing's axis units."""
 
@@ -140,7 +141,7 @@ class Series:
         return {"label": self.label, "style": self.style, "points": [[_clean(x), _clean(y)] for x, y in self.points]}
 
 
-@dataclass
+@mutable
 class Circle:
     """A circle of an R-X drawing: centre (r, x) and radius, in the drawing's axis units."""
 
@@ -154,7 +155,7 @@ class Circle:
                 "style": self.style}
 
 
-@dataclass
+@mutable
 class Drawing:
     """What a sheet drawing shows. ``kind``: ``time-current`` (log-log), ``r-x``, ``frequency``, ``i2-time``."""
 
@@ -180,7 +181,7 @@ class Drawing:
         return out
 
 
-@dataclass
+@mutable
 class FunctionSettings:
     """What one protection function's rule returns."""
 
@@ -202,7 +203,7 @@ class FunctionSettings:
                 "test_points": [t.to_json() for t in self.test_points]}
 
 
-@dataclass
+@mutable
 class SettingsRecord:
     """The whole study result for one machine."""
 

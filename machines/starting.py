@@ -30,11 +30,12 @@ Models used (and stated on the sheet):
 from __future__ import annotations
 
 import math
-from dataclasses import dataclass, replace
+from dataclasses import replace
 from functools import lru_cache
 
 import numpy as np
 
+from machines.frozen import frozen
 from machines.standards.double_cage import (  # noqa: F401  (re-exported)
     TwoCage, breakdown_slip, fit_two_cage, kloss_torque, outer_slip_for_pull_up, pull_up_torque,
 )
@@ -233,11 +234,17 @@ def speed_after_dip(dip_time: float, initial_speed: float, inertia: float, synch
 # ---------------------------------------------------------------------------------------------------- the curves
 
 
+def sorted_distinct(values: np.ndarray) -> np.ndarray:
+    """The distinct values in rising order (what ``np.unique`` returns, without its import of ``numpy.ma``)."""
+    s = np.sort(np.asarray(values, dtype=float))
+    return s[np.concatenate(([True], s[1:] != s[:-1]))] if s.size else s
+
+
 #: speeds of a tabulated motor curve: even from standstill, denser near synchronous speed [pu]
-_CURVE_SPEEDS = np.unique(np.concatenate((np.linspace(0.0, 0.9, 181), 1.0 - np.geomspace(0.1, 1e-4, 220))))
+_CURVE_SPEEDS = sorted_distinct(np.concatenate((np.linspace(0.0, 0.9, 181), 1.0 - np.geomspace(0.1, 1e-4, 220))))
 
 
-@dataclass(frozen=True)
+@frozen
 class MotorCurve:
     """Torque [pu of rated torque] and current [pu of full-load current] against speed [pu of synchronous], at
     rated voltage, tabulated; ``source`` says where the curve comes from, ``pull_up`` is its least torque from
@@ -348,7 +355,7 @@ def maker_curve(speed: tuple[float, ...], torque: tuple[float, ...], current: tu
         sp, tq, cu = sp + [n_r], tq + [1.0], cu + [1.0]
     i0 = math.sqrt(max(1.0 - power_factor ** 2, 0.0))
     sp, tq, cu = sp + [1.0], tq + [0.0], cu + [i0]
-    n = np.unique(np.concatenate((_CURVE_SPEEDS, sp)))
+    n = sorted_distinct(np.concatenate((_CURVE_SPEEDS, sp)))
     torques = np.interp(n, sp, tq)
     top = int(np.argmax(torques))
     return MotorCurve(n, torques, np.interp(n, sp, cu), "the maker's speed curve", float(torques[:top + 1].min()))
@@ -357,7 +364,7 @@ def maker_curve(speed: tuple[float, ...], torque: tuple[float, ...], current: tu
 # ---------------------------------------------------------------------------------------------------- the study
 
 
-@dataclass(frozen=True)
+@frozen
 class StartStudy:
     """One start at one terminal voltage.
 

@@ -13,16 +13,16 @@ from __future__ import annotations
 
 import math
 import re
-from dataclasses import dataclass
 from functools import lru_cache
 
 from machines.errors import InputError, one_line
+from machines.frozen import frozen
 from machines.unit_table import DEFINITIONS, UnitInfo, answer, info, lookup
 
 MAX_TEXT = 120  # characters; a quantity a person writes is far shorter
 
 
-@dataclass(frozen=True)
+@frozen
 class Kind:
     """A kind of quantity a field expects."""
 

@@ -37,6 +37,7 @@ import numpy as np
 
 from machines.errors import InputError
 from machines.files import parse_ratio, parse_value, safe_file_stem, section_specs
+from machines.frozen import frozen
 from machines.model import Ratio
 from machines.standards.accuracy import operate_time_tolerance
 from machines.standards.unbalance import sequence_components
@@ -63,7 +64,7 @@ class NoWaveform(Exception):
         self.kind, self.reason = kind, reason
 
 
-@dataclass(frozen=True)
+@frozen
 class System:
     """What the record's inputs say about the system the relay sits on."""
 
@@ -73,7 +74,7 @@ class System:
     ratios: dict[str, Ratio] = field(default_factory=dict)  #: instrument transformers by their file key
 
 
-@dataclass(frozen=True)
+@frozen
 class Group:
     """Channels fed from one instrument transformer: three phases (A, B, C) or one (N)."""
 

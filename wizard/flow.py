@@ -22,6 +22,7 @@ from typing import Any, Callable
 
 from machines.errors import InputError
 from machines.files import FORMAT, MACHINE_KINDS, parse_value, section_specs
+from machines.frozen import frozen
 from machines.model import (FieldSpec, HistoryEntry, ct_primary_error, field_specs, generator_poles,
                             generator_rated_current, generator_speed_error, motor_current_error, motor_speed_error,
                             rated_current_from_output)
@@ -124,7 +125,7 @@ class Answers:
         return value if isinstance(value, float) else None
 
 
-@dataclass(frozen=True)
+@frozen
 class Finding:
     """A cross-check on the answers so far: ``warn`` (the person may keep the answer) or ``error`` (must fix)."""
 
@@ -141,7 +142,7 @@ def _always(a: Answers) -> bool:
     return True
 
 
-@dataclass(frozen=True)
+@frozen
 class Question:
     """One question of the flow.
 
@@ -497,7 +498,7 @@ def check_salient_two_pole(a: Answers) -> Finding | None:
     return Finding("warn", "a salient-pole rotor, but the speed gives a 2-pole machine: check the rotor type")
 
 
-@dataclass(frozen=True)
+@frozen
 class CrossCheck:
     """A check across answers, run as soon as the last of the keys it reads is given.
 

@@ -12,8 +12,8 @@ Methods: machines/METHODS.md §9 (common quantities, the connection and the syst
 from __future__ import annotations
 
 import math
-from dataclasses import dataclass
 
+from machines.frozen import frozen
 from machines.model import MachineCase, Ratio, generator_rated_current
 from machines.protection import (
     backup_distance, field_ground, frequency, generator_differential, inadvertent_energisation, loss_of_field,
@@ -33,7 +33,7 @@ from machines.standards.negative_sequence import UnbalanceCapability, table_capa
 SQRT3 = math.sqrt(3.0)
 
 
-@dataclass(frozen=True)
+@frozen
 class GeneratorBasis:
     """What every generator rule shares [SI; reactances pu on the machine base]."""
 

@@ -22,10 +22,11 @@ and a warning says so.
 from __future__ import annotations
 
 import math
-from dataclasses import dataclass, field
+from dataclasses import field
 
 import numpy as np
 
+from machines.frozen import frozen
 from machines.model import MachineCase, motor_poles, rated_slip, synchronous_speed
 from machines.protection.base import StudyContext
 from machines.record import Check, Setting
@@ -47,7 +48,7 @@ PULL_UP_LOW = 0.85  # common practice, no published source
 PURCHASE_MARGIN = 0.10  # API 541 style purchase requirement, value from memory
 
 
-@dataclass(frozen=True)
+@frozen
 class MotorBasis:
     """Derived motor quantities in SI (currents [A], times [s], voltages [pu of motor rated voltage])."""
 

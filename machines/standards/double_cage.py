@@ -27,9 +27,10 @@ speed, where a pump's or fan's load torque is large, so it overstates the accele
 from __future__ import annotations
 
 import math
-from dataclasses import dataclass
 
 import numpy as np
+
+from machines.frozen import frozen
 
 #: slips of the curve's grid between rated slip and standstill, log-spaced [-]
 GRID_POINTS = 240
@@ -69,7 +70,7 @@ def _k(s: float, x: float) -> float:
     return 2.0 / (s / x + x / s)
 
 
-@dataclass(frozen=True)
+@frozen
 class TwoCage:
     """A fitted double-cage curve: the starting cage (peak ``outer_peak`` at ``outer_slip``) and the running cage
     (``inner_peak`` at ``inner_slip``) [pu]; ``lr_excess`` > 0 when Kloss's running cage alone gives more torque at

@@ -32,10 +32,11 @@ from __future__ import annotations
 
 import itertools
 import math
-from dataclasses import dataclass
 from functools import lru_cache
 
 import numpy as np
+
+from machines.frozen import frozen
 
 #: slips of the fit's grid from rated slip to standstill, log-spaced [-]
 FIT_GRID_POINTS = 96
@@ -190,7 +191,7 @@ def rated_airgap_torque(efficiency: float, power_factor: float, rated_slip: floa
 # ---------------------------------------------------------------------------------------------------- the fit
 
 
-@dataclass(frozen=True)
+@frozen
 class DoubleCage:
     """A fitted double-cage circuit [pu of the motor's base] and how well it honours its data sheet.
 

@@ -13,9 +13,9 @@ Methods: machines/METHODS.md §8 (frequency; 8.1 bands, 8.3 swing equation and S
 from __future__ import annotations
 
 import math
-from dataclasses import dataclass
 
 from machines.errors import InputError
+from machines.frozen import frozen
 
 
 def initial_rocof(power_deficit: float, inertia_constant: float, frequency: float) -> float:
@@ -47,7 +47,7 @@ def initial_rocof(power_deficit: float, inertia_constant: float, frequency: floa
     return -power_deficit * frequency / (2.0 * inertia_constant)
 
 
-@dataclass(frozen=True)
+@frozen
 class SfrParameters:
     """Parameters of the Anderson–Mirheydar SFR model (all on the system base).
 

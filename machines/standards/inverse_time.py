@@ -21,12 +21,12 @@ Methods: machines/METHODS.md §1 (inverse-time curves; 1.2 constants, 1.4 check 
 from __future__ import annotations
 
 import math
-from dataclasses import dataclass
 
 from machines.errors import InputError
+from machines.frozen import frozen
 
 
-@dataclass(frozen=True)
+@frozen
 class InverseCurve:
     """Constants of one dependent-time characteristic.
 

@@ -15,12 +15,12 @@ Methods: machines/METHODS.md §6 (generator negative sequence; 6.4 check values)
 from __future__ import annotations
 
 import math
-from dataclasses import dataclass
 
 from machines.errors import InputError
+from machines.frozen import frozen
 
 
-@dataclass(frozen=True)
+@frozen
 class UnbalanceCapability:
     """A machine's negative-sequence capability: continuous I2 [pu], K [s], where they came from."""
 
