@@ -8,8 +8,6 @@ Exit codes: 0 done; 1 settings produced but a check failed (or a signature/finge
 are one line on stderr, never a traceback.
 """
 
-from __future__ import annotations
-
 import sys
 from pathlib import Path
 from typing import Annotated, Optional
@@ -73,12 +71,13 @@ def _study(path: Path):
 @app.command("settings")
 def settings_cmd(
     file: Annotated[Path, typer.Argument(help="Machine file (.toml).")],
-    json_out: Annotated[bool, typer.Option("--json", help="Print the settings record as JSON.")] = False,
+    json_out: Annotated[bool, typer.Option("--json", help="Print the settings record as compact JSON (for programs; "
+                                                        "`python -m json.tool` indents it).")] = False,
 ) -> None:
     """Compute the settings for one machine and print them (table or JSON)."""
     _, record = _study(file)
     if json_out:
-        typer.echo(record.dumps())
+        typer.echo(record.dumps(indent=None))
         caution(err=True)
     else:
         from reports.console import print_record
