@@ -1,7 +1,7 @@
 """Benchmark: one study, one sheet, a 200-file batch and a re-run of current files, each against its floor.
 
 Not a test: it prints the figures as rows of the README's performance table. Run from the repository with the
-project's virtualenv, on an otherwise quiet machine (about seven minutes on two quiet cores)::
+project's virtualenv, on an otherwise quiet machine (about forty minutes on two quiet cores)::
 
     python benchmarks/bench_batch.py [--files 200] [--pairs 5] [--rerun-files 1000]
 
