@@ -9,6 +9,7 @@ from __future__ import annotations
 import copy
 import json
 import os
+import re
 import signal
 import subprocess
 import sys
@@ -253,16 +254,22 @@ def make_many(src: Path, n: int) -> None:
 
 def test_cli_batch_and_ctrl_c(tmp_path):
     src, out = tmp_path / "many", tmp_path / "out"
-    make_many(src, 80)
+    make_many(src, 300)  # a whole run would take minutes: Ctrl-C lands in the middle
     cmd = [sys.executable, "-m", "wizard.cli", "batch", str(src), "-o", str(out), "--workers", "2"]
+    started = time.monotonic()
+    # Ctrl-C as in a terminal: started from a shell without job control (`ci &`, nohup, cron) this test would
+    # inherit an ignored SIGINT, which Python keeps ignored, as it should; the batch gets the default disposition.
     proc = subprocess.Popen(cmd, cwd=ROOT, stdout=subprocess.PIPE, stderr=subprocess.PIPE, text=True,
-                            start_new_session=True)
-    deadline = time.monotonic() + 30
-    while time.monotonic() < deadline and not (out.is_dir() and any(out.glob("*.json"))):
+                            start_new_session=True, preexec_fn=lambda: signal.signal(signal.SIGINT, signal.SIG_DFL))
+    deadline = started + 60
+    while time.monotonic() < deadline and proc.poll() is None and not (out.is_dir() and any(out.glob("*.json"))):
         time.sleep(0.02)
+    assert proc.poll() is None, f"the batch ended before Ctrl-C: {proc.communicate()[1]}"
+    sent = time.monotonic() - started
     os.killpg(proc.pid, signal.SIGINT)  # what Ctrl-C in a terminal does: the whole process group
-    stdout, stderr = proc.communicate(timeout=30)
-    assert proc.returncode == 130, stderr
+    stdout, stderr = proc.communicate(timeout=60)
+    assert proc.returncode == 130, f"Ctrl-C sent {sent:.1f} s after the start; {stderr}"
+    assert re.search(r"stopped: \d+ of 300 machine files were done", stderr), stderr
     assert "stopped: " in stderr and "Traceback" not in stderr + stdout and "exception" not in stderr
     assert not list(out.glob(".*.tmp"))
     for record in out.glob("*.json"):  # every record written stands beside its finished sheet

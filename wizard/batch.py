@@ -333,7 +333,7 @@ def _process(task: Task) -> Outcome:
 
     record = run_study(case, warnings)
     data = record.to_json()
-    text = dumps_json(data, indent=None) + "\n"  # compact: other programs read it (``settings --json`` is pretty)
+    text = dumps_json(data, indent=None) + "\n"  # compact, as ``settings --json`` prints it: other programs read it
     sheet = build_sheet(record)
     refuse_to_replace(pdf, sheet)  # a signed or issued sheet, or another machine's, is never overwritten
     refuse_to_replace_record(record_path, case.sheet.tag, text)
