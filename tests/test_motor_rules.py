@@ -191,6 +191,34 @@ def test_49_shows_locked_rotor_times_and_margins():
     assert any("stall from cold is protected by 51LR" in m for m in messages(rec, "warn", "49"))
 
 
+def test_49_below_pickup_test_says_what_the_alarm_does():
+    # IEC 60255-149 replica from cold at 0.95 × pickup: θ(t) = 0.9025·(1 − e^(−t/τ)), 86 % of trip after 3τ; an alarm
+    # level a below that operates within the 3τ injection, after τ·ln(0.9025 / (0.9025 − a))
+    def point(rec):
+        return next(tp for tp in rec.function("49").test_points if tp.id == "49.4")
+
+    rec = study()
+    assert value(rec, "49", "alarm_level") > 0.86
+    assert point(rec).expected_time is None and "neither the trip nor the thermal alarm" in point(rec).description
+    rec = study(**{"overrides__49.alarm_level": "0.8 pu"})
+    tau = value(rec, "49", "heating_time_constant")
+    minutes = tau * math.log(0.9025 / (0.9025 - 0.8)) / 60
+    assert point(rec).expected_time is None
+    assert f"the thermal alarm (80 %) operates after {minutes:.0f} min" in point(rec).description
+
+
+def test_46_below_pickup_test_says_what_the_alarm_does():
+    # the 46 alarm stage is definite time above its pickup: within the injection only when its delay is shorter
+    def point(rec):
+        return next(tp for tp in rec.function("46").test_points if tp.id == "46.1")
+
+    rec = study()
+    assert value(rec, "46", "alarm_time_delay") > value(rec, "46", "time_delay") + 2.0
+    assert point(rec).expected_time is None and "the alarm output does not operate either" in point(rec).description
+    rec = study(**{"overrides__46.alarm_time_delay": "3 s"})
+    assert point(rec).expected_time is None and "the alarm output operates after 3 s" in point(rec).description
+
+
 def test_49_short_time_constant_trips_start():
     # IEC 60255-149 replica run through the start: a τ fitted to the cold stall trips a hot start (METHODS.md §2.2)
     rec = study(**{"overrides__49.heating_time_constant": "60 s"})

@@ -158,10 +158,18 @@ def _test_points(ct, flc: float, stages: dict, alarm: float, alarm_delay: float)
                                 phases=phases, duration=None if t is not None else round(longest + 2.0, 1),
                                 description=description)
 
+    def alarm_in(i2: float, injected: float) -> str:
+        """What the alarm output does in the injection: with every stage in service the technician sees it too."""
+        if i2 <= alarm:
+            return "the alarm output does not operate either (below its pickup)"
+        if alarm_delay <= injected:
+            return f"the alarm output operates after {alarm_delay:g} s"
+        return f"the alarm output does not operate either (its delay, {alarm_delay:g} s, is longer)"
+
     i1 = flc
     out = [
         tp(i1, 0.9 * pickup, f"I1 = FLC with I2 = 0.9 × pickup ({0.9 * pickup / i1:.0%} of I1): the trip must not "
-                             f"operate (inject {longest + 2:g} s; the alarm output operates after {alarm_delay:g} s)"),
+                             f"operate (inject {longest + 2:g} s); {alarm_in(0.9 * pickup, longest + 2.0)}"),
         tp(i1, 1.5 * pickup, f"I1 = FLC with I2 = 1.5 × pickup ({1.5 * pickup / i1:.0%} of I1): trips after the "
                              "I2 delay"),
     ]

@@ -31,7 +31,7 @@ from machines.record import Check, FunctionSettings, Setting
 from machines.standards.accuracy import DEFAULT_TIME_ERROR, DEFAULT_TIME_FLOOR
 from machines.standards.overload_limits import nec_overload_limit
 from machines.standards.thermal_replica import (
-    start_capacity, thermal_level_profile, thermal_operate_time, time_constant_from_trip_time,
+    start_capacity, thermal_level, thermal_level_profile, thermal_operate_time, time_constant_from_trip_time,
 )
 
 FID = "49"
@@ -154,7 +154,7 @@ def settings(ctx: StudyContext) -> FunctionSettings:
         "alarm_level": Setting(alarm, "pu", a_src, label="Thermal alarm level",
                                note=f"alarms at {pickup * math.sqrt(alarm) / flc:.3f} × FLC in steady running"),
     }
-    tps = _test_points(ct, pickup, tau, flc, b, t_hot)
+    tps = _test_points(ct, pickup, tau, flc, b, t_hot, alarm)
     nec_text = (f", kept within the {nec:.0%} of NEC 430.32(A)(1) (guidance for medium voltage)"
                 if practice == "IEEE" else "")
     basis = (f"Pickup {pk0 / flc:.2f} × FLC: the service factor {m.service_factor:g} + 0.05, at least 1.10 "
@@ -364,7 +364,7 @@ def _record(ctx: StudyContext, b, pickup: float, tau: float, t_hot: float, t_col
             note="(1 − e^(−t_st/τ))/(1 − e^(−t_sc/τ)), τ fitted to cold stall")
 
 
-def _test_points(ct, pickup: float, tau: float, flc: float, b, t_hot: float) -> list:
+def _test_points(ct, pickup: float, tau: float, flc: float, b, t_hot: float, alarm: float) -> list:
     tps = []
     for mult in TEST_MULTIPLES:
         i = mult * pickup
@@ -373,10 +373,16 @@ def _test_points(ct, pickup: float, tau: float, flc: float, b, t_hot: float) -> 
                                     initial_state="cold", duration=_duration(t),
                                     description=f"{mult:g} × pickup, three-phase balanced, replica reset to cold"))
     i = 0.95 * pickup
+    # with every stage in service the technician sees the alarm output too: say whether it operates in the injection
+    t_alarm = thermal_operate_time(i, pickup * math.sqrt(alarm), tau) if alarm > 0.0 else 0.0
+    reached = thermal_level(i, pickup, tau, 3.0 * tau)
+    outcome = (f"the trip must not operate (the level settles at 90 % of trip); the thermal alarm "
+               f"({alarm * 100:.0f} %) operates after {t_alarm / 60:.0f} min" if t_alarm < 3.0 * tau else
+               f"neither the trip nor the thermal alarm ({alarm * 100:.0f} %) operates (the level reaches "
+               f"{reached * 100:.0f} % of trip, settling at 90 %)")
     tps.append(timed_test_point("current", ct.to_secondary(i), "A", None, applied_primary=i, primary_unit="A",
                                 initial_state="cold", duration=round(3.0 * tau),
-                                description=f"0.95 × pickup from cold for 3τ ({3 * tau / 60:.0f} min): must not "
-                                            "operate (the level settles at 90 % of trip)"))
+                                description=f"0.95 × pickup from cold for 3τ ({3 * tau / 60:.0f} min): {outcome}"))
     if math.isfinite(t_hot):
         i_lr = b.lr_high
         theta = (flc / pickup) ** 2
