@@ -118,6 +118,19 @@ def test_46_tables_by_practice():
     assert s["pickup_current"].value == pytest.approx(0.10 * 4183.7, rel=5e-4)
 
 
+def test_46_held_test_says_what_the_alarm_does():
+    # METHODS.md §6.3: the alarm at 70 % of the continuous rating (common practice) lies below the 95 % test, so it
+    # operates after its delay while the trip is held off; an alarm set above 95 % of the pickup does not
+    def first(record):
+        return record.function("46").test_points[0]
+
+    tp = first(study())
+    assert tp.expected_time is None and "the alarm operates after 10 s" in tp.description
+    pickup = study().function("46").settings["pickup_current"].value
+    tp = first(study(**{"overrides.46.alarm_pickup_current": f"{0.97 * pickup:.1f} A"}))
+    assert tp.expected_time is None and "the alarm does not operate either" in tp.description
+
+
 def test_46_salient_without_damper():
     # IEEE C50.12, non-connected amortisseur: 5 % continuous, K = 40 s (METHODS.md §6.1, value from memory)
     record = study(**{"machine.rotor": "salient-without-damper", "machine.rated_speed": "450 rpm",
